@@ -1,0 +1,57 @@
+// Invite someone by e-mail with a role; the mail carries a one-time link. Admins only.
+import { randomUUID } from 'node:crypto'
+import { and, eq, isNull } from 'drizzle-orm'
+import { invites, users } from '../../db/schema'
+import { createInviteSchema } from '../../../shared/schemas/invites'
+import { INVITE_TOKEN_LIFETIME_MS } from '../../../shared/utils/tokens'
+import { ROLE_LABELS } from '../../../shared/types/roles'
+
+export default defineEventHandler(async (event) => {
+  const input = await readValid(event, createInviteSchema)
+  const caller = await requireRole(event, 'admin')
+  const db = await useDb()
+  const [existing] = await db.select({ id: users.id }).from(users).where(eq(users.email, input.email)).limit(1)
+  if (existing) {
+    const message = 'This address already has a Fourfold account, and an account belongs to one organisation.'
+    throw createError({ statusCode: 409, message, data: { message, fieldErrors: { email: [message] } } })
+  }
+  const { token, hash } = newSecretToken()
+  const now = Date.now()
+  const invite = {
+    id: randomUUID(),
+    organisationId: caller.organisation.id,
+    email: input.email,
+    role: input.role,
+    tokenHash: hash,
+    invitedBy: caller.user.id,
+    expiresAt: new Date(now + INVITE_TOKEN_LIFETIME_MS),
+  }
+  await writeTransaction(async (tx) => {
+    // A new invitation to the same address replaces any still open.
+    await tx.update(invites).set({ revokedAt: new Date(now) }).where(and(
+      eq(invites.organisationId, caller.organisation.id),
+      eq(invites.email, input.email),
+      isNull(invites.acceptedAt),
+      isNull(invites.revokedAt),
+    ))
+    await tx.insert(invites).values(invite)
+    await recordAudit(tx, { organisationId: caller.organisation.id, actorUserId: caller.user.id, action: 'invite.created', targetType: 'invite', targetId: invite.id, detail: { email: input.email, role: input.role } })
+  })
+  let mailed = true
+  try {
+    await sendMail(inviteMail({
+      to: input.email,
+      organisation: caller.organisation.name,
+      inviter: caller.user.name,
+      role: ROLE_LABELS[input.role].toLowerCase(),
+      link: appLink(`/accept-invite?token=${encodeURIComponent(token)}`),
+      days: INVITE_TOKEN_LIFETIME_MS / 86_400_000,
+    }))
+  }
+  catch (error) {
+    mailed = false
+    console.error('[fourfold] invite mail not sent:', error)
+  }
+  setResponseStatus(event, 201)
+  return { id: invite.id, email: invite.email, role: invite.role, expiresAt: invite.expiresAt, mailed }
+})

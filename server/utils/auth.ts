@@ -1,0 +1,55 @@
+// Authorization in one place. Every route that touches organisation data calls
+// requireRole first; it re-reads the membership from the database on every
+// request, so a changed role or a removal takes effect at once.
+import type { H3Event } from 'h3'
+import { and, eq } from 'drizzle-orm'
+import { memberships, organisations, users } from '../db/schema'
+import type { Role } from '../../shared/types/roles'
+
+export interface Caller {
+  user: { id: string, name: string, email: string }
+  membership: { id: string, role: Role }
+  organisation: { id: string, name: string, coachesMayPublish: boolean }
+}
+
+function unauthorised(message = 'Sign in to continue.') {
+  return createError({ statusCode: 401, statusMessage: 'Unauthorized', message, data: { message } })
+}
+
+export async function requireSignedIn(event: H3Event): Promise<Caller> {
+  const session = await getUserSession(event)
+  const userId = session.user?.id
+  const organisationId = session.organisationId
+  if (!userId || !organisationId) throw unauthorised()
+  const db = await useDb()
+  const [row] = await db.select({
+    user: { id: users.id, name: users.name, email: users.email, passwordChangedAt: users.passwordChangedAt },
+    membership: { id: memberships.id, role: memberships.role },
+    organisation: { id: organisations.id, name: organisations.name, coachesMayPublish: organisations.coachesMayPublish },
+  }).from(memberships)
+    .innerJoin(users, eq(users.id, memberships.userId))
+    .innerJoin(organisations, eq(organisations.id, memberships.organisationId))
+    .where(and(eq(memberships.userId, userId), eq(memberships.organisationId, organisationId)))
+    .limit(1)
+  // Removed from the organisation, or the password changed since this session began.
+  if (!row || (session.signedInAt ?? 0) < row.user.passwordChangedAt.getTime()) {
+    await clearUserSession(event)
+    throw unauthorised('Your session has ended. Sign in again.')
+  }
+  const { passwordChangedAt: _changed, ...user } = row.user
+  return { user, membership: row.membership, organisation: row.organisation }
+}
+
+export async function requireRole(event: H3Event, ...roles: Role[]): Promise<Caller> {
+  const caller = await requireSignedIn(event)
+  if (roles.length && !roles.includes(caller.membership.role)) {
+    const message = `This needs the ${roles.join(' or ')} role; you are signed in as ${caller.membership.role}.`
+    throw createError({ statusCode: 403, statusMessage: 'Forbidden', message, data: { message } })
+  }
+  return caller
+}
+
+/** Starts a fresh sealed session (replace, never merge: no state carries over from before sign-in). */
+export async function startSession(event: H3Event, user: { id: string, name: string, email: string }, organisationId: string) {
+  await replaceUserSession(event, { user, organisationId, signedInAt: Date.now() })
+}

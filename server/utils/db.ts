@@ -1,0 +1,60 @@
+// One lazy database client per process. The first caller opens the connection
+// and applies the committed migrations; everyone else awaits the same promise,
+// because Nitro does not wait for plugins before serving requests.
+import { existsSync } from 'node:fs'
+import { dirname, resolve } from 'node:path'
+import { createClient } from '@libsql/client'
+import { drizzle } from 'drizzle-orm/libsql'
+import { migrate } from 'drizzle-orm/libsql/migrator'
+import * as schema from '../db/schema'
+
+export type Db = ReturnType<typeof drizzle<typeof schema>>
+
+let ready: Promise<Db> | undefined
+
+export function databaseUrl(): string {
+  return process.env.DATABASE_URL || useRuntimeConfig().databaseUrl || 'file:.data/fourfold.db'
+}
+
+function migrationsFolder(): string {
+  const configured = process.env.MIGRATIONS_DIR || useRuntimeConfig().migrationsDir
+  const candidates = [
+    configured,
+    // The build copies drizzle/ beside .output/server/index.mjs.
+    process.argv[1] ? resolve(dirname(process.argv[1]), 'drizzle') : '',
+    resolve(process.cwd(), 'drizzle'),
+  ].filter(Boolean) as string[]
+  const found = candidates.find(dir => existsSync(resolve(dir, 'meta/_journal.json')))
+  if (!found) throw new Error(`No migrations found; looked in ${candidates.join(', ')}. Set MIGRATIONS_DIR.`)
+  return found
+}
+
+async function open(): Promise<Db> {
+  const url = databaseUrl()
+  if (url.startsWith('file:')) {
+    const { mkdir } = await import('node:fs/promises')
+    const path = url.slice('file:'.length).split('?')[0]!
+    if (path && path !== ':memory:') await mkdir(dirname(resolve(path)), { recursive: true })
+  }
+  const client = createClient({
+    url,
+    authToken: process.env.DATABASE_AUTH_TOKEN || useRuntimeConfig().databaseAuthToken || undefined,
+    // Busy timeout (ms) for every pooled connection: waits for another process's write.
+    timeout: 5000,
+  })
+  if (url.startsWith('file:')) {
+    // WAL is a property of the database file, so one connection setting it is enough.
+    await client.execute('PRAGMA journal_mode = WAL')
+  }
+  const db = drizzle(client, { schema })
+  await migrate(db, { migrationsFolder: migrationsFolder() })
+  return db
+}
+
+export function useDb(): Promise<Db> {
+  ready ??= open().catch((error) => {
+    ready = undefined
+    throw error
+  })
+  return ready
+}

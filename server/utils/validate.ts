@@ -1,0 +1,61 @@
+// Input validation in one shape for every route: unparseable JSON is a 400,
+// a body or params that break the resource's zod schema are a 422 whose
+// `data.fieldErrors` the forms show beside each field.
+import type { H3Event } from 'h3'
+import type { z } from 'zod'
+
+export function fieldErrorsOf(error: z.ZodError): Record<string, string[]> {
+  const fieldErrors: Record<string, string[]> = {}
+  for (const issue of error.issues) {
+    const key = issue.path.length ? issue.path.join('.') : '_form'
+    ;(fieldErrors[key] ??= []).push(issue.message)
+  }
+  return fieldErrors
+}
+
+export function invalidInput(error: z.ZodError, message = 'Some fields need attention.') {
+  return createError({ statusCode: 422, statusMessage: 'Unprocessable Entity', message, data: { message, fieldErrors: fieldErrorsOf(error) } })
+}
+
+export async function readValid<S extends z.ZodType>(event: H3Event, schema: S): Promise<z.output<S>> {
+  let body: unknown
+  try {
+    body = await readBody(event)
+  }
+  catch (error) {
+    if (isError(error) && error.statusCode === 413) throw error
+    throw createError({ statusCode: 400, statusMessage: 'Bad Request', message: 'The request body is not valid JSON.', data: { message: 'The request body is not valid JSON.' } })
+  }
+  if (body === undefined || body === null || typeof body !== 'object') {
+    throw createError({ statusCode: 400, statusMessage: 'Bad Request', message: 'Send a JSON object in the request body.', data: { message: 'Send a JSON object in the request body.' } })
+  }
+  const result = schema.safeParse(body)
+  if (!result.success) throw invalidInput(result.error)
+  return result.data
+}
+
+export async function paramsValid<S extends z.ZodType>(event: H3Event, schema: S): Promise<z.output<S>> {
+  const result = schema.safeParse(getRouterParams(event, { decode: true }))
+  // A malformed id cannot name a row of anyone's: answer as for a missing row.
+  if (!result.success) throw notFound()
+  return result.data
+}
+
+export function queryValid<S extends z.ZodType>(event: H3Event, schema: S): z.output<S> {
+  const result = schema.safeParse(getQuery(event))
+  if (!result.success) throw invalidInput(result.error, 'Some query parameters are not valid.')
+  return result.data
+}
+
+export function notFound(what = 'That item') {
+  const message = `${what} was not found in your organisation.`
+  return createError({ statusCode: 404, statusMessage: 'Not Found', message, data: { message } })
+}
+
+export function conflict(message: string) {
+  return createError({ statusCode: 409, statusMessage: 'Conflict', message, data: { message } })
+}
+
+export function badRequest(message: string, statusCode = 400) {
+  return createError({ statusCode, message, data: { message } })
+}

@@ -1,0 +1,16 @@
+import { z } from 'zod'
+import { ROLES } from '../types/roles'
+import { emailSchema, passwordSchema, personNameSchema } from './auth'
+
+export const roleSchema = z.enum(ROLES, { error: 'Choose a role: admin, coach, learner or auditor.' })
+
+export const createInviteSchema = z.object({
+  email: emailSchema,
+  role: roleSchema,
+})
+
+export const acceptInviteSchema = z.object({
+  token: z.string({ error: 'The invitation link is incomplete.' }).min(20, 'The invitation link is incomplete.').max(200, 'The invitation link is not valid.'),
+  name: personNameSchema,
+  password: passwordSchema,
+})

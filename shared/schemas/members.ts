@@ -1,0 +1,4 @@
+import { z } from 'zod'
+import { roleSchema } from './invites'
+
+export const updateMemberSchema = z.object({ role: roleSchema })
