@@ -9,8 +9,6 @@ if (process.env.NODE_ENV !== 'production') ensureDevSessionPassword()
 const isDev = process.env.NODE_ENV !== 'production'
 
 export default defineNuxtConfig({
-  compatibilityDate: '2026-11-01',
-  devtools: { enabled: false },
   modules: [
     '@nuxtjs/tailwindcss',
     '@pinia/nuxt',
@@ -19,12 +17,7 @@ export default defineNuxtConfig({
     '@vite-pwa/nuxt',
     '@nuxt/eslint',
   ],
-  css: [
-    '@fontsource/atkinson-hyperlegible/400.css',
-    '@fontsource/atkinson-hyperlegible/700.css',
-    '@fontsource/atkinson-hyperlegible/400-italic.css',
-    '~/assets/css/main.css',
-  ],
+  devtools: { enabled: false },
   app: {
     head: {
       htmlAttrs: { lang: 'en' },
@@ -35,6 +28,12 @@ export default defineNuxtConfig({
       ],
     },
   },
+  css: [
+    '@fontsource/atkinson-hyperlegible/400.css',
+    '@fontsource/atkinson-hyperlegible/700.css',
+    '@fontsource/atkinson-hyperlegible/400-italic.css',
+    '~/assets/css/main.css',
+  ],
   runtimeConfig: {
     // Every key can be set at run time through NUXT_<KEY> (see README "Configuration").
     databaseUrl: 'file:.data/fourfold.db',
@@ -56,10 +55,7 @@ export default defineNuxtConfig({
     // Overridable at run time (NUXT_HASH_SCRYPT_COST …) only so the benchmark can compare settings.
     hash: { scrypt: { ...PASSWORD_SCRYPT_SETTINGS } },
   },
-  auth: {
-    hash: { scrypt: { ...PASSWORD_SCRYPT_SETTINGS } },
-  },
-  typescript: { strict: true },
+  compatibilityDate: '2026-11-01',
   nitro: {
     experimental: { tasks: true },
     hooks: {
@@ -68,6 +64,13 @@ export default defineNuxtConfig({
         cpSync(resolve(nitro.options.rootDir, 'drizzle'), resolve(nitro.options.output.serverDir, 'drizzle'), { recursive: true })
       },
     },
+  },
+  typescript: { strict: true },
+  auth: {
+    hash: { scrypt: { ...PASSWORD_SCRYPT_SETTINGS } },
+  },
+  eslint: {
+    config: { stylistic: true },
   },
   pwa: {
     registerType: 'prompt',
@@ -96,8 +99,5 @@ export default defineNuxtConfig({
     },
     client: { installPrompt: true },
     devOptions: { enabled: false },
-  },
-  eslint: {
-    config: { stylistic: true },
   },
 })

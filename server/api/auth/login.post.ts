@@ -9,7 +9,7 @@ export default defineEventHandler(async (event) => {
 
   const throttle = await checkSignInThrottle(keys)
   if (throttle.blocked) {
-    setResponseHeader(event, 'Retry-After', String(throttle.retryAfterSeconds))
+    setResponseHeader(event, 'Retry-After', throttle.retryAfterSeconds)
     const minutes = Math.ceil(throttle.retryAfterSeconds / 60)
     const message = `Too many failed sign-ins. Try again in ${minutes} minute${minutes === 1 ? '' : 's'}, or reset your password.`
     throw createError({ statusCode: 429, statusMessage: 'Too Many Requests', message, data: { message } })

@@ -1,0 +1,30 @@
+// npm test — every check, in the order that fails fastest: lint, types, build once,
+// then unit, nuxt, e2e and browser tests against that build in real Chromium.
+import { execSync, spawnSync } from 'node:child_process'
+import { existsSync } from 'node:fs'
+
+const CHROMIUM = process.env.CHROMIUM_PATH || '/usr/bin/chromium'
+
+function run(label, command, args, env = {}) {
+  console.log(`\n▶ ${label}`)
+  const result = spawnSync(command, args, { stdio: 'inherit', env: { ...process.env, ...env } })
+  if (result.status !== 0) {
+    console.error(`✖ ${label} failed`)
+    process.exit(result.status ?? 1)
+  }
+}
+
+if (!existsSync(CHROMIUM)) {
+  const isRoot = typeof process.getuid === 'function' && process.getuid() === 0
+  if (!isRoot) {
+    console.error(`Chromium is missing at ${CHROMIUM}. Install Debian's package first:\n  sudo apt-get update && sudo apt-get install -y chromium`)
+    process.exit(1)
+  }
+  console.log('▶ installing Debian chromium (browser tests drive it; no browser is downloaded by a test tool)')
+  execSync('apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq chromium', { stdio: 'inherit' })
+}
+
+run('lint', 'npx', ['eslint', '.'])
+run('typecheck', 'npx', ['nuxt', 'typecheck'])
+run('build', 'npx', ['nuxt', 'build'], { NODE_ENV: 'production' })
+run('tests (unit, nuxt, e2e, browser)', 'npx', ['vitest', 'run', ...process.argv.slice(2)], { FOURFOLD_BUILT: '1', CHROMIUM_PATH: CHROMIUM })

@@ -1,0 +1,10 @@
+// The e2e and browser projects test the built server. `npm test` builds once before
+// vitest starts (FOURFOLD_BUILT=1); running a project directly builds here instead.
+import { execSync } from 'node:child_process'
+import { existsSync } from 'node:fs'
+
+export default function setup() {
+  if (process.env.FOURFOLD_BUILT === '1' && existsSync('.output/server/index.mjs')) return
+  execSync('npx nuxt build', { stdio: 'inherit', env: { ...process.env, NODE_ENV: 'production' } })
+  process.env.FOURFOLD_BUILT = '1'
+}

@@ -1,0 +1,39 @@
+import { defineConfig } from 'vitest/config'
+import { defineVitestProject } from '@nuxt/test-utils/config'
+
+// Four projects, one command (npm test): pure functions, Nuxt components,
+// the built server over HTTP, and real Chromium against the built server.
+export default defineConfig({
+  test: {
+    projects: [
+      {
+        test: { name: 'unit', include: ['tests/unit/**/*.test.ts'], environment: 'node' },
+      },
+      await defineVitestProject({
+        test: { name: 'nuxt', include: ['tests/nuxt/**/*.test.ts'], environment: 'nuxt', setupFiles: ['tests/support/nuxt-setup.ts'] },
+      }),
+      {
+        test: {
+          name: 'e2e',
+          include: ['tests/e2e/**/*.test.ts'],
+          environment: 'node',
+          globalSetup: ['tests/support/build-once.ts'],
+          testTimeout: 60_000,
+          hookTimeout: 120_000,
+        },
+      },
+      {
+        test: {
+          name: 'browser',
+          include: ['tests/browser/**/*.test.ts'],
+          environment: 'node',
+          globalSetup: ['tests/support/build-once.ts'],
+          testTimeout: 120_000,
+          hookTimeout: 120_000,
+          // One Chromium at a time: the machine has two cores.
+          fileParallelism: false,
+        },
+      },
+    ],
+  },
+})
