@@ -6,8 +6,6 @@ import { PASSWORD_SCRYPT_SETTINGS } from './server/utils/password-settings'
 // nuxt-auth-utils would otherwise write a generated secret into .env; we keep it in .data/.
 if (process.env.NODE_ENV !== 'production') ensureDevSessionPassword()
 
-const isDev = process.env.NODE_ENV !== 'production'
-
 export default defineNuxtConfig({
   modules: [
     '@nuxtjs/tailwindcss',
@@ -42,7 +40,8 @@ export default defineNuxtConfig({
     smtpUrl: '',
     mailFrom: 'Fourfold <no-reply@fourfold.example>',
     mailDir: '.data/mail',
-    mailCapturePage: isDev,
+    // The captured-mail page is for development; the demo (npm start) switches it on.
+    mailCapturePage: false,
     appUrl: 'http://localhost:3000',
     bodyLimitBytes: 262144,
     session: {
@@ -50,7 +49,7 @@ export default defineNuxtConfig({
       password: '',
       // Twelve hours: one long shift, then sign in again.
       maxAge: 60 * 60 * 12,
-      cookie: { sameSite: 'lax', httpOnly: true, secure: !isDev },
+      cookie: { sameSite: 'lax', httpOnly: true, secure: true },
     },
     // Overridable at run time (NUXT_HASH_SCRYPT_COST …) only so the benchmark can compare settings.
     hash: { scrypt: { ...PASSWORD_SCRYPT_SETTINGS } },
@@ -63,6 +62,12 @@ export default defineNuxtConfig({
       compiled(nitro) {
         cpSync(resolve(nitro.options.rootDir, 'drizzle'), resolve(nitro.options.output.serverDir, 'drizzle'), { recursive: true })
       },
+    },
+  },
+  $development: {
+    runtimeConfig: {
+      mailCapturePage: true,
+      session: { cookie: { secure: false } },
     },
   },
   typescript: { strict: true },

@@ -6,6 +6,7 @@ import { resolve } from 'node:path'
 import { randomUUID } from 'node:crypto'
 import { SMTPServer } from 'smtp-server'
 import { simpleParser } from 'mailparser'
+import { linksIn } from './mail-links'
 
 export interface CapturedMail {
   id: string
@@ -20,10 +21,6 @@ export interface CapturedMail {
 
 export function mailDirectory(): string {
   return resolve(process.env.MAIL_DIR || useRuntimeConfig().mailDir || '.data/mail')
-}
-
-export function linksIn(text: string): string[] {
-  return [...new Set(text.match(/https?:\/\/[^\s<>"')]+/g) ?? [])]
 }
 
 export async function startMailCapture(dir: string): Promise<number> {

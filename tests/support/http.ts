@@ -5,6 +5,13 @@ export class Client {
   private cookies = new Map<string, string>()
   constructor(readonly base: string, readonly address = '127.0.0.1') {}
 
+  /** Another client with the same cookies: for requests that would change this one's session. */
+  clone(): Client {
+    const copy = new Client(this.base, this.address)
+    for (const [k, v] of this.cookies) copy.cookies.set(k, v)
+    return copy
+  }
+
   get signedIn() {
     return this.cookies.size > 0
   }

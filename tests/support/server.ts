@@ -32,15 +32,14 @@ export async function freePort(): Promise<number> {
   })
 }
 
-export async function startServer(options: { env?: Record<string, string>, dir?: string } = {}): Promise<TestServer> {
+export async function startServer(options: { env?: Record<string, string | undefined>, dir?: string } = {}): Promise<TestServer> {
   const port = await freePort()
   const dir = options.dir ?? await mkdtemp(join(tmpdir(), 'fourfold-test-'))
   const url = `http://127.0.0.1:${port}`
   const databaseUrl = `file:${join(dir, 'fourfold.db')}`
   const mailDir = join(dir, 'mail')
   let log = ''
-  const child = spawn(process.execPath, [resolve('.output/server/index.mjs')], {
-    env: {
+  const env: Record<string, string | undefined> = {
       ...process.env,
       NODE_ENV: 'production',
       PORT: String(port),
@@ -55,7 +54,11 @@ export async function startServer(options: { env?: Record<string, string>, dir?:
       // Tests give each scenario its own address through X-Forwarded-For.
       TRUST_PROXY: '1',
       ...options.env,
-    },
+  }
+  // A key given as undefined means: leave it unset, so the build's default applies.
+  for (const [key, value] of Object.entries(env)) if (value === undefined) delete env[key]
+  const child = spawn(process.execPath, [resolve('.output/server/index.mjs')], {
+    env: env as NodeJS.ProcessEnv,
     stdio: ['ignore', 'pipe', 'pipe'],
   })
   child.stdout!.on('data', (d: Buffer) => (log += d.toString()))

@@ -1,0 +1,105 @@
+// The role × route matrix. Every file under server/api/ must have an entry here, so no
+// route can skip the authorization check: a new route fails this test until it is listed.
+import { readdirSync, statSync } from 'node:fs'
+import { join, relative } from 'node:path'
+import { randomUUID } from 'node:crypto'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { startServer, type TestServer } from '../support/server'
+import { Client, uniqueAddress } from '../support/http'
+import { addMember, signUp, uniqueEmail } from '../support/accounts'
+import { ROLES, type Role } from '../../shared/types/roles'
+
+type Access = 'public' | 'signed-in' | Role[]
+// `ownSession`: the request replaces or ends the caller's session, so it runs on a copy.
+interface Entry { access: Access, path?: () => string, body?: () => unknown, ownSession?: boolean }
+
+const missingId = () => randomUUID()
+
+// Bodies are valid so that the answer speaks of the role, not of the input.
+export const MATRIX: Record<string, Entry> = {
+  'GET /api/health': { access: 'public' },
+  'GET /api/dev/mail': { access: 'public' },
+  'POST /api/auth/signup': { access: 'public', ownSession: true, body: () => ({ organisation: 'Matrix Org', name: 'M', email: uniqueEmail('m'), password: 'matrix passphrase' }) },
+  'POST /api/auth/login': { access: 'public', body: () => ({ email: uniqueEmail('nobody'), password: 'whatever' }) },
+  'POST /api/auth/logout': { access: 'public', ownSession: true },
+  'POST /api/auth/forgot': { access: 'public', body: () => ({ email: uniqueEmail('nobody') }) },
+  'POST /api/auth/reset': { access: 'public', body: () => ({ token: 'x'.repeat(43), password: 'matrix passphrase' }) },
+  'POST /api/invites/accept': { access: 'public', ownSession: true, body: () => ({ token: 'x'.repeat(43), name: 'M', password: 'matrix passphrase' }) },
+  'POST /api/auth/password': { access: 'signed-in', ownSession: true, body: () => ({ currentPassword: 'not it', newPassword: 'matrix passphrase' }) },
+  'GET /api/me': { access: 'signed-in' },
+  'GET /api/work-areas': { access: 'signed-in' },
+  'POST /api/work-areas': { access: ['admin'], body: () => ({ name: `Area ${randomUUID()}` }) },
+  'PATCH /api/work-areas/[id]': { access: ['admin'], path: () => `/api/work-areas/${missingId()}`, body: () => ({ name: 'Renamed' }) },
+  'DELETE /api/work-areas/[id]': { access: ['admin'], path: () => `/api/work-areas/${missingId()}` },
+  'GET /api/invites': { access: ['admin'] },
+  'POST /api/invites': { access: ['admin'], body: () => ({ email: uniqueEmail('invitee'), role: 'learner' }) },
+  'DELETE /api/invites/[id]': { access: ['admin'], path: () => `/api/invites/${missingId()}` },
+  'GET /api/members': { access: ['admin'] },
+  'PATCH /api/members/[id]': { access: ['admin'], path: () => `/api/members/${missingId()}`, body: () => ({ role: 'coach' }) },
+  'DELETE /api/members/[id]': { access: ['admin'], path: () => `/api/members/${missingId()}` },
+  'PATCH /api/organisation': { access: ['admin'], body: () => ({ coachesMayPublish: true }) },
+  'GET /api/audit': { access: ['admin', 'auditor'] },
+}
+
+function routeFiles(dir: string): string[] {
+  return readdirSync(dir).flatMap((name) => {
+    const full = join(dir, name)
+    return statSync(full).isDirectory() ? routeFiles(full) : [full]
+  })
+}
+
+export function routeKey(file: string): string {
+  const rel = relative('server/api', file).replace(/\\/g, '/').replace(/\.ts$/, '')
+  const match = /^(.*?)(?:\.(get|post|put|patch|delete))$/.exec(rel)
+  const path = match ? match[1]! : rel
+  const method = (match?.[2] ?? 'get').toUpperCase()
+  const clean = path.replace(/(^|\/)index$/, '')
+  return `${method} /api${clean ? `/${clean}` : ''}`
+}
+
+describe('every route is in the matrix', () => {
+  it('lists each file under server/api/ exactly once', () => {
+    const keys = routeFiles('server/api').map(routeKey).sort()
+    expect(keys.filter(k => !(k in MATRIX))).toEqual([])
+    expect(Object.keys(MATRIX).filter(k => !keys.includes(k))).toEqual([])
+  })
+})
+
+let server: TestServer
+const clients: Partial<Record<Role | 'anonymous', Client>> = {}
+beforeAll(async () => {
+  server = await startServer()
+  const admin = await signUp(server)
+  clients.admin = admin.client
+  for (const role of ROLES.filter(r => r !== 'admin')) clients[role] = (await addMember(server, admin.client, role)).client
+  clients.anonymous = new Client(server.url, uniqueAddress())
+}, 120_000)
+afterAll(() => server?.stop())
+
+describe('role × route', () => {
+  const cases = Object.entries(MATRIX).flatMap(([key, entry]) => (['anonymous', ...ROLES] as const).map(who => ({ key, entry, who })))
+
+  it.each(cases)('$key as $who', async ({ key, entry, who }) => {
+    const [method, template] = key.split(' ') as [string, string]
+    const path = entry.path?.() ?? template
+    const body = entry.body?.() ?? (method === 'GET' ? undefined : {})
+    const client = entry.ownSession ? clients[who]!.clone() : clients[who]!
+    const res = await client.request(method, path, body)
+    expect(res.status, res.text).toBeLessThan(500)
+    const allowed = entry.access === 'public' || (who !== 'anonymous' && (entry.access === 'signed-in' || entry.access.includes(who)))
+    if (entry.access === 'public') {
+      // Public routes never ask for a role; a wrong sign-in is the one 401 they give.
+      expect(res.status).not.toBe(403)
+      if (key !== 'POST /api/auth/login') expect(res.status).not.toBe(401)
+    }
+    else if (who === 'anonymous') {
+      expect(res.status).toBe(401)
+    }
+    else if (allowed) {
+      expect([401, 403]).not.toContain(res.status)
+    }
+    else {
+      expect(res.status).toBe(403)
+    }
+  })
+})
