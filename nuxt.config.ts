@@ -15,6 +15,12 @@ export default defineNuxtConfig({
     '@vite-pwa/nuxt',
     '@nuxt/eslint',
   ],
+  $development: {
+    runtimeConfig: {
+      mailCapturePage: true,
+      session: { cookie: { secure: false } },
+    },
+  },
   devtools: { enabled: false },
   app: {
     head: {
@@ -62,12 +68,6 @@ export default defineNuxtConfig({
       compiled(nitro) {
         cpSync(resolve(nitro.options.rootDir, 'drizzle'), resolve(nitro.options.output.serverDir, 'drizzle'), { recursive: true })
       },
-    },
-  },
-  $development: {
-    runtimeConfig: {
-      mailCapturePage: true,
-      session: { cookie: { secure: false } },
     },
   },
   typescript: { strict: true },

@@ -40,25 +40,24 @@ export async function startServer(options: { env?: Record<string, string | undef
   const mailDir = join(dir, 'mail')
   let log = ''
   const env: Record<string, string | undefined> = {
-      ...process.env,
-      NODE_ENV: 'production',
-      PORT: String(port),
-      HOST: '127.0.0.1',
-      DATABASE_URL: databaseUrl,
-      MAIL_DIR: mailDir,
-      SMTP_URL: '',
-      MAIL_CAPTURE_PAGE: 'true',
-      NUXT_APP_URL: url,
-      NUXT_SESSION_PASSWORD: randomBytes(32).toString('hex'),
-      NUXT_SESSION_COOKIE_SECURE: 'false',
-      // Tests give each scenario its own address through X-Forwarded-For.
-      TRUST_PROXY: '1',
-      ...options.env,
+    ...process.env,
+    NODE_ENV: 'production',
+    PORT: String(port),
+    HOST: '127.0.0.1',
+    DATABASE_URL: databaseUrl,
+    MAIL_DIR: mailDir,
+    SMTP_URL: '',
+    MAIL_CAPTURE_PAGE: 'true',
+    NUXT_APP_URL: url,
+    NUXT_SESSION_PASSWORD: randomBytes(32).toString('hex'),
+    NUXT_SESSION_COOKIE_SECURE: 'false',
+    // Tests give each scenario its own address through X-Forwarded-For.
+    TRUST_PROXY: '1',
+    ...options.env,
   }
   // A key given as undefined means: leave it unset, so the build's default applies.
-  for (const [key, value] of Object.entries(env)) if (value === undefined) delete env[key]
   const child = spawn(process.execPath, [resolve('.output/server/index.mjs')], {
-    env: env as NodeJS.ProcessEnv,
+    env: Object.fromEntries(Object.entries(env).filter(([, value]) => value !== undefined)) as NodeJS.ProcessEnv,
     stdio: ['ignore', 'pipe', 'pipe'],
   })
   child.stdout!.on('data', (d: Buffer) => (log += d.toString()))
