@@ -3,6 +3,8 @@
 import { sql } from 'drizzle-orm'
 import { index, integer, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core'
 import { ROLES } from '../../shared/types/roles'
+import { VERSION_STATUSES, type HazardCategory } from '../../shared/types/breakdown'
+import type { BreakdownContent } from '../../shared/schemas/breakdown'
 
 const id = () => text('id').primaryKey()
 const createdAt = () => integer('created_at', { mode: 'timestamp_ms' }).notNull().default(sql`(unixepoch('subsec') * 1000)`)
@@ -94,3 +96,63 @@ export type User = typeof users.$inferSelect
 export type Membership = typeof memberships.$inferSelect
 export type Invite = typeof invites.$inferSelect
 export type WorkArea = typeof workAreas.$inferSelect
+
+// ---- Jobs and breakdowns ----------------------------------------------------------------
+
+export const jobs = sqliteTable('jobs', {
+  id: id(),
+  organisationId: text('organisation_id').notNull().references(() => organisations.id, { onDelete: 'cascade' }),
+  workAreaId: text('work_area_id').references(() => workAreas.id, { onDelete: 'set null' }),
+  title: text('title').notNull(),
+  purpose: text('purpose').notNull().default(''),
+  hazards: text('hazards', { mode: 'json' }).$type<Array<{ category: HazardCategory, description: string }>>().notNull().default(sql`'[]'`),
+  ppe: text('ppe', { mode: 'json' }).$type<string[]>().notNull().default(sql`'[]'`),
+  toolsAndMaterials: text('tools_and_materials', { mode: 'json' }).$type<string[]>().notNull().default(sql`'[]'`),
+  workplaceArrangement: text('workplace_arrangement').notNull().default(''),
+  // How many people the job needs ready (coverage target).
+  coverageTarget: integer('coverage_target').notNull().default(2),
+  archivedAt: integer('archived_at', { mode: 'timestamp_ms' }),
+  createdAt: createdAt(),
+  updatedAt: integer('updated_at', { mode: 'timestamp_ms' }).notNull().default(sql`(unixepoch('subsec') * 1000)`),
+}, t => [index('jobs_org_idx').on(t.organisationId)])
+
+export const breakdownVersions = sqliteTable('breakdown_versions', {
+  id: id(),
+  organisationId: text('organisation_id').notNull().references(() => organisations.id, { onDelete: 'cascade' }),
+  jobId: text('job_id').notNull().references(() => jobs.id, { onDelete: 'cascade' }),
+  // 1, 2, 3 … per job, in the order drafts were started.
+  number: integer('number').notNull(),
+  status: text('status', { enum: VERSION_STATUSES }).notNull().default('draft'),
+  content: text('content', { mode: 'json' }).$type<BreakdownContent>().notNull(),
+  // Optimistic-concurrency counter: every saved edit adds one; a save based on an older one is refused.
+  revision: integer('revision').notNull().default(0),
+  changeNote: text('change_note'),
+  basedOnVersionId: text('based_on_version_id'),
+  createdBy: text('created_by').references(() => users.id, { onDelete: 'set null' }),
+  publishedBy: text('published_by').references(() => users.id, { onDelete: 'set null' }),
+  publishedAt: integer('published_at', { mode: 'timestamp_ms' }),
+  retiredAt: integer('retired_at', { mode: 'timestamp_ms' }),
+  createdAt: createdAt(),
+  updatedAt: integer('updated_at', { mode: 'timestamp_ms' }).notNull().default(sql`(unixepoch('subsec') * 1000)`),
+}, t => [
+  uniqueIndex('breakdown_versions_job_number_unique').on(t.jobId, t.number),
+  index('breakdown_versions_org_idx').on(t.organisationId),
+])
+
+export const uploads = sqliteTable('uploads', {
+  id: id(),
+  organisationId: text('organisation_id').notNull().references(() => organisations.id, { onDelete: 'cascade' }),
+  // Keys in Nitro storage ('photos' mount): the re-encoded image and its thumbnail.
+  storageKey: text('storage_key').notNull(),
+  thumbKey: text('thumb_key').notNull(),
+  mime: text('mime').notNull(),
+  width: integer('width').notNull(),
+  height: integer('height').notNull(),
+  bytes: integer('bytes').notNull(),
+  createdBy: text('created_by').references(() => users.id, { onDelete: 'set null' }),
+  createdAt: createdAt(),
+}, t => [index('uploads_org_idx').on(t.organisationId)])
+
+export type Job = typeof jobs.$inferSelect
+export type BreakdownVersion = typeof breakdownVersions.$inferSelect
+export type Upload = typeof uploads.$inferSelect
