@@ -5,6 +5,8 @@ import { count } from 'drizzle-orm'
 import type { LibSQLDatabase } from 'drizzle-orm/libsql'
 import * as schema from './schema'
 import type { Role } from '../../shared/types/roles'
+import type { BreakdownContent } from '../../shared/schemas/breakdown'
+import { DEMO_JOBS, demoContent } from './demo-jobs'
 
 export const DEMO_ORGANISATION = 'Hollowmere Bakery & Packing'
 export const DEFAULT_DEMO_PASSWORD = 'bakery-demo-2026'
@@ -36,7 +38,48 @@ export async function seedDemo(db: AnyDb, options: { password: string, hash: (pa
       await tx.insert(schema.users).values({ id: p.id, email: p.email, name: p.name, passwordHash, passwordChangedAt: now })
       await tx.insert(schema.memberships).values({ id: randomUUID(), organisationId, userId: p.id, role: p.role })
     }
-    await tx.insert(schema.workAreas).values(DEMO_WORK_AREAS.map(name => ({ id: randomUUID(), organisationId, name })))
+    const areas = DEMO_WORK_AREAS.map(name => ({ id: randomUUID(), organisationId, name }))
+    await tx.insert(schema.workAreas).values(areas)
+    const admin = people.find(p => p.role === 'admin')!
+    const coach = people.find(p => p.role === 'coach')!
+    const day = 86_400_000
+    for (const [j, job] of DEMO_JOBS.entries()) {
+      const jobId = randomUUID()
+      await tx.insert(schema.jobs).values({
+        id: jobId,
+        organisationId,
+        workAreaId: areas.find(a => a.name === job.workArea)?.id ?? null,
+        title: job.title,
+        purpose: job.purpose,
+        hazards: job.hazards,
+        ppe: job.ppe,
+        toolsAndMaterials: job.toolsAndMaterials,
+        workplaceArrangement: job.workplaceArrangement,
+        coverageTarget: job.coverageTarget,
+      })
+      let previous: { id: string, content: BreakdownContent } | undefined
+      for (const [v, version] of job.versions.entries()) {
+        const isLatest = v === job.versions.length - 1
+        const publishedAt = new Date(now.getTime() - (60 - j * 5 - v * 20) * day)
+        const content = demoContent(version.units, randomUUID, previous?.content)
+        const versionId = randomUUID()
+        await tx.insert(schema.breakdownVersions).values({
+          id: versionId,
+          organisationId,
+          jobId,
+          number: v + 1,
+          status: isLatest ? 'published' : 'retired',
+          content,
+          changeNote: version.changeNote,
+          basedOnVersionId: previous?.id ?? null,
+          createdBy: coach.id,
+          publishedBy: admin.id,
+          publishedAt,
+          retiredAt: isLatest ? null : new Date(publishedAt.getTime() + 20 * day),
+        })
+        previous = { id: versionId, content }
+      }
+    }
     await tx.insert(schema.auditLog).values({ id: randomUUID(), organisationId, actorUserId: null, action: 'demo.seeded', targetType: 'organisation', targetId: organisationId, detail: { accounts: people.length } })
   })
   return { organisationId }
