@@ -75,8 +75,11 @@ export function replayLesson(events: readonly LessonEvent[], content: BreakdownC
     if (!p) continue
     const ids = passElementIds(p.type, elements)
     switch (e.kind) {
-      case 'pass-open': break
-      case 'pass-close': p.closed = true; break
+      case 'pass-open':
+        break
+      case 'pass-close':
+        p.closed = true
+        break
       case 'mark':
         if (e.elementId && ids.includes(e.elementId) && isMarkValue(e.value) && p.type.startsWith('T')) p.marks.set(e.elementId, e.value)
         break
