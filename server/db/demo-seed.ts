@@ -20,6 +20,15 @@ export const DEMO_ACCOUNTS: Array<{ email: string, name: string, role: Role }> =
 
 export const DEMO_WORK_AREAS = ['Bake line', 'Slicing and bagging', 'Maintenance']
 
+/** Roster entries without an account (the demo learner account gets its own entry). */
+export const DEMO_ROSTER: Array<{ name: string, workArea: string, reference: string }> = [
+  { name: 'Ilse Brannagh-Okafor', workArea: 'Slicing and bagging', reference: 'HB-0142' },
+  { name: 'Matthias Quennell', workArea: 'Bake line', reference: 'HB-0157' },
+  { name: 'Yusra Delacroix-Behn', workArea: 'Slicing and bagging', reference: 'HB-0163' },
+  { name: 'Cormac Ainsley-Tove', workArea: 'Maintenance', reference: 'HB-0171' },
+  { name: 'Nadia Strathorne', workArea: 'Bake line', reference: 'HB-0178' },
+]
+
 type AnyDb = LibSQLDatabase<typeof schema>
 
 export async function databaseIsEmpty(db: AnyDb): Promise<boolean> {
@@ -40,6 +49,11 @@ export async function seedDemo(db: AnyDb, options: { password: string, hash: (pa
     }
     const areas = DEMO_WORK_AREAS.map(name => ({ id: randomUUID(), organisationId, name }))
     await tx.insert(schema.workAreas).values(areas)
+    const learnerAccount = people.find(p => p.role === 'learner')!
+    await tx.insert(schema.learners).values([
+      { id: randomUUID(), organisationId, name: learnerAccount.name, userId: learnerAccount.id, workAreaId: areas.find(a => a.name === 'Slicing and bagging')!.id, reference: 'HB-0139' },
+      ...DEMO_ROSTER.map(r => ({ id: randomUUID(), organisationId, name: r.name, workAreaId: areas.find(a => a.name === r.workArea)!.id, reference: r.reference })),
+    ])
     const admin = people.find(p => p.role === 'admin')!
     const coach = people.find(p => p.role === 'coach')!
     const day = 86_400_000

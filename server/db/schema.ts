@@ -46,6 +46,8 @@ export const invites = sqliteTable('invites', {
   // Only a SHA-256 of the token is kept; the token itself lives in the e-mail.
   tokenHash: text('token_hash').notNull(),
   invitedBy: text('invited_by').references(() => users.id, { onDelete: 'set null' }),
+  // Inviting someone already in the roster links their new account to that roster entry.
+  learnerId: text('learner_id'),
   expiresAt: integer('expires_at', { mode: 'timestamp_ms' }).notNull(),
   acceptedAt: integer('accepted_at', { mode: 'timestamp_ms' }),
   revokedAt: integer('revoked_at', { mode: 'timestamp_ms' }),
@@ -156,3 +158,21 @@ export const uploads = sqliteTable('uploads', {
 export type Job = typeof jobs.$inferSelect
 export type BreakdownVersion = typeof breakdownVersions.$inferSelect
 export type Upload = typeof uploads.$inferSelect
+
+// ---- Roster -----------------------------------------------------------------------------
+
+// A learner in the roster need not have an account; inviting them links one (userId).
+export const learners = sqliteTable('learners', {
+  id: id(),
+  organisationId: text('organisation_id').notNull().references(() => organisations.id, { onDelete: 'cascade' }),
+  name: text('name').notNull(),
+  userId: text('user_id').references(() => users.id, { onDelete: 'set null' }),
+  workAreaId: text('work_area_id').references(() => workAreas.id, { onDelete: 'set null' }),
+  // The organisation's own reference (staff number, badge), optional.
+  reference: text('reference').notNull().default(''),
+  archivedAt: integer('archived_at', { mode: 'timestamp_ms' }),
+  createdAt: createdAt(),
+  updatedAt: integer('updated_at', { mode: 'timestamp_ms' }).notNull().default(sql`(unixepoch('subsec') * 1000)`),
+}, t => [index('learners_org_idx').on(t.organisationId)])
+
+export type Learner = typeof learners.$inferSelect

@@ -7,6 +7,8 @@ export const roleSchema = z.enum(ROLES, { error: 'Choose a role: admin, coach, l
 export const createInviteSchema = z.object({
   email: emailSchema,
   role: roleSchema,
+  // Optional: the roster entry this person is (role learner only).
+  learnerId: z.uuid('Choose a learner from the roster.').nullable().optional(),
 })
 
 export const acceptInviteSchema = z.object({

@@ -1,7 +1,7 @@
 // Replays a lesson's events against its pinned breakdown: passes, marks, recited order,
 // scores and the readiness suggestion. The tablet shows these live; the server stores them at sync.
 import type { BreakdownContent } from '../schemas/breakdown'
-import { effectiveEvents, isMarkValue, parsePassKey, passKey, type LessonEvent, type PassType } from './lesson-events'
+import { effectiveEvents, isMarkValue, parsePassKey, type LessonEvent, type PassType } from './lesson-events'
 import { orderScore } from './order-metrics'
 import { passScore, recallScore, roundScore, type MarkValue } from './scoring'
 
@@ -161,4 +161,3 @@ export function nextPassNumber(state: LessonState, type: PassType): number {
   return (state.latest[type]?.number ?? 0) + 1
 }
 
-export { passKey }

@@ -2,7 +2,7 @@
 // and signs them in. Anyone holding a valid invitation token may call it.
 import { randomUUID } from 'node:crypto'
 import { and, eq, isNull } from 'drizzle-orm'
-import { invites, memberships, users } from '../../db/schema'
+import { invites, learners, memberships, users } from '../../db/schema'
 import { acceptInviteSchema } from '../../../shared/schemas/invites'
 import { tokenState } from '../../../shared/utils/tokens'
 
@@ -27,6 +27,13 @@ export default defineEventHandler(async (event) => {
     }
     await tx.insert(users).values({ ...user, passwordHash, passwordChangedAt: now })
     await tx.insert(memberships).values({ id: randomUUID(), organisationId: invite.organisationId, userId: user.id, role: invite.role })
+    if (invite.role === 'learner') {
+      // A learner's account belongs to a roster entry: the one they were invited for, or a new one.
+      const linked = invite.learnerId
+        ? await tx.update(learners).set({ userId: user.id, updatedAt: now }).where(and(eq(learners.id, invite.learnerId), eq(learners.organisationId, invite.organisationId), isNull(learners.userId))).returning({ id: learners.id })
+        : []
+      if (!linked.length) await tx.insert(learners).values({ id: randomUUID(), organisationId: invite.organisationId, name: input.name, userId: user.id })
+    }
     await recordAudit(tx, { organisationId: invite.organisationId, actorUserId: user.id, action: 'invite.accepted', targetType: 'invite', targetId: invite.id, detail: { role: invite.role } })
     return 'accepted' as const
   }).catch((error) => {

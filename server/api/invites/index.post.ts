@@ -1,7 +1,7 @@
 // Invite someone by e-mail with a role; the mail carries a one-time link. Admins only.
 import { randomUUID } from 'node:crypto'
 import { and, eq, isNull } from 'drizzle-orm'
-import { invites, users } from '../../db/schema'
+import { invites, learners, users } from '../../db/schema'
 import { createInviteSchema } from '../../../shared/schemas/invites'
 import { INVITE_TOKEN_LIFETIME_MS } from '../../../shared/utils/tokens'
 import { ROLE_LABELS } from '../../../shared/types/roles'
@@ -15,6 +15,11 @@ export default defineEventHandler(async (event) => {
     const message = 'This address already has a Fourfold account, and an account belongs to one organisation.'
     throw createError({ statusCode: 409, message, data: { message, fieldErrors: { email: [message] } } })
   }
+  if (input.learnerId) {
+    const [learner] = await db.select({ userId: learners.userId }).from(learners).where(and(eq(learners.id, input.learnerId), eq(learners.organisationId, caller.organisation.id))).limit(1)
+    const message = !learner ? 'Choose a learner from the roster.' : learner.userId ? 'This learner has an account already.' : input.role !== 'learner' ? 'A roster entry can only be invited as a learner.' : ''
+    if (message) throw createError({ statusCode: 422, message, data: { message, fieldErrors: { learnerId: [message] } } })
+  }
   const { token, hash } = newSecretToken()
   const now = Date.now()
   const invite = {
@@ -22,6 +27,7 @@ export default defineEventHandler(async (event) => {
     organisationId: caller.organisation.id,
     email: input.email,
     role: input.role,
+    learnerId: input.learnerId ?? null,
     tokenHash: hash,
     invitedBy: caller.user.id,
     expiresAt: new Date(now + INVITE_TOKEN_LIFETIME_MS),
