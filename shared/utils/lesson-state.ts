@@ -160,4 +160,3 @@ function readiness(latest: LessonState['latest'], elements: BreakdownElements, s
 export function nextPassNumber(state: LessonState, type: PassType): number {
   return (state.latest[type]?.number ?? 0) + 1
 }
-
