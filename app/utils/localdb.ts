@@ -1,0 +1,182 @@
+// The tablet's own store (IndexedDB through Dexie), opened lazily and only in the browser.
+// It holds what a lesson needs with the network off: published breakdowns and their photos,
+// the roster, the device id, lessons and the outbox of lesson events (DESIGN.md §7).
+import Dexie, { type EntityTable } from 'dexie'
+import type { BreakdownContent } from '#shared/schemas/breakdown'
+import type { LessonEvent } from '#shared/utils/lesson-events'
+
+export interface OfflineVersion {
+  id: string
+  jobId: string
+  organisationId: string
+  number: number
+  publishedAt: number | null
+  content: BreakdownContent
+  job: {
+    title: string
+    purpose: string
+    hazards: Array<{ category: string, description: string }>
+    ppe: string[]
+    toolsAndMaterials: string[]
+    workplaceArrangement: string
+    workAreaName: string | null
+  }
+}
+
+export interface OfflineLearner { id: string, organisationId: string, name: string, workAreaName: string | null, reference: string }
+
+export interface OfflinePhoto { id: string, size: 'full' | 'thumb', key: string, blob: Blob }
+
+export type LessonStage = 'prepare' | 'present' | 'tryout' | 'followup'
+
+export interface LocalLesson {
+  id: string
+  organisationId: string
+  coachUserId: string
+  learnerId: string
+  jobId: string
+  versionId: string
+  place: string
+  startedAt: number
+  updatedAt: number
+  /** Where the coach was, so a reload reopens at the same stage, pass and step. */
+  cursor: { stage: LessonStage, pass: string | null, index: number }
+  prepare: Record<string, { done: boolean, note: string }>
+  helper: string
+  decision: 'ready' | 'another-pass' | null
+  acknowledgement: { name: string, signature: string | null, at: number } | null
+  signedOffAt: number | null
+  stageSeconds: Partial<Record<LessonStage, number>>
+  /** 0 while the server has not taken the latest change. */
+  synced: 0 | 1
+}
+
+export interface LocalEvent extends LessonEvent { synced: 0 | 1 }
+
+export interface MetaRow { key: string, value: unknown }
+
+export type FourfoldDb = Dexie & {
+  meta: EntityTable<MetaRow, 'key'>
+  versions: EntityTable<OfflineVersion, 'id'>
+  learners: EntityTable<OfflineLearner, 'id'>
+  photos: EntityTable<OfflinePhoto, 'key'>
+  lessons: EntityTable<LocalLesson, 'id'>
+  events: EntityTable<LocalEvent, 'id'>
+}
+
+let db: FourfoldDb | undefined
+
+export function localDb(): FourfoldDb {
+  if (db) return db
+  // Strict durability: a mark must be on disk before the screen says it is recorded.
+  const instance = new Dexie('fourfold', { chromeTransactionDurability: 'strict' }) as FourfoldDb
+  instance.version(1).stores({
+    meta: 'key',
+    versions: 'id, jobId, organisationId',
+    learners: 'id, organisationId, name',
+    photos: 'key, id',
+    lessons: 'id, organisationId, learnerId, jobId, updatedAt, synced',
+    events: 'id, lessonId, [lessonId+seq], [deviceId+seq], synced',
+  })
+  db = instance
+  return instance
+}
+
+/** For tests: forget the open handle so the next call opens afresh. */
+export async function closeLocalDb() {
+  db?.close()
+  db = undefined
+}
+
+async function meta<T>(key: string): Promise<T | undefined> {
+  return (await localDb().meta.get(key))?.value as T | undefined
+}
+
+/** This tablet's id, made once and kept. */
+export async function deviceId(): Promise<string> {
+  const store = localDb()
+  return store.transaction('rw', store.meta, async () => {
+    const existing = await meta<string>('deviceId')
+    if (existing) return existing
+    const id = crypto.randomUUID()
+    await store.meta.put({ key: 'deviceId', value: id })
+    return id
+  })
+}
+
+export type NewEvent = Pick<LessonEvent, 'lessonId' | 'pass' | 'elementId' | 'kind' | 'value'>
+
+/**
+ * Appends one event with this device's next sequence number, in one strict transaction with the
+ * lesson's own updatedAt; resolves only once IndexedDB has committed it.
+ */
+export async function appendEvent(input: NewEvent, now = Date.now()): Promise<LocalEvent> {
+  const store = localDb()
+  const device = await deviceId()
+  return store.transaction('rw', [store.meta, store.events, store.lessons], async () => {
+    const seq = ((await meta<number>('seq')) ?? 0) + 1
+    await store.meta.put({ key: 'seq', value: seq })
+    const event: LocalEvent = { ...input, id: crypto.randomUUID(), clientTime: now, deviceId: device, seq, synced: 0 }
+    await store.events.add(event)
+    await store.lessons.update(input.lessonId, { updatedAt: now })
+    return event
+  })
+}
+
+export async function lessonEvents(lessonId: string): Promise<LocalEvent[]> {
+  return localDb().events.where('lessonId').equals(lessonId).toArray()
+}
+
+export async function saveLesson(lesson: LocalLesson): Promise<void> {
+  await localDb().lessons.put(lesson)
+}
+
+export async function updateLesson(id: string, changes: Partial<Omit<LocalLesson, 'id'>>, now = Date.now()): Promise<void> {
+  await localDb().lessons.update(id, { ...changes, updatedAt: now, synced: 0 })
+}
+
+export async function getLesson(id: string): Promise<LocalLesson | undefined> {
+  return localDb().lessons.get(id)
+}
+
+export async function lessonsOf(organisationId: string): Promise<LocalLesson[]> {
+  return (await localDb().lessons.where('organisationId').equals(organisationId).toArray()).sort((a, b) => b.updatedAt - a.updatedAt)
+}
+
+export async function unsyncedEvents(limit = 5000): Promise<LocalEvent[]> {
+  return localDb().events.where('synced').equals(0).limit(limit).toArray()
+}
+
+export async function markEventsSynced(ids: readonly string[]): Promise<void> {
+  const store = localDb()
+  await store.transaction('rw', store.events, async () => {
+    await store.events.where('id').anyOf([...ids]).modify({ synced: 1 })
+  })
+}
+
+/** Replaces the organisation's published breakdowns and roster with what the server sent. */
+export async function storeReferenceData(organisationId: string, data: { versions: OfflineVersion[], learners: OfflineLearner[] }): Promise<void> {
+  const store = localDb()
+  await store.transaction('rw', [store.versions, store.learners], async () => {
+    await store.versions.where('organisationId').equals(organisationId).delete()
+    await store.learners.where('organisationId').equals(organisationId).delete()
+    await store.versions.bulkPut(data.versions)
+    await store.learners.bulkPut(data.learners)
+  })
+}
+
+export async function offlineVersions(organisationId: string): Promise<OfflineVersion[]> {
+  return localDb().versions.where('organisationId').equals(organisationId).toArray()
+}
+
+export async function offlineLearners(organisationId: string): Promise<OfflineLearner[]> {
+  return localDb().learners.where('organisationId').equals(organisationId).sortBy('name')
+}
+
+export async function storePhoto(id: string, size: 'full' | 'thumb', blob: Blob): Promise<void> {
+  await localDb().photos.put({ id, size, key: `${id}:${size}`, blob })
+}
+
+export async function offlinePhoto(id: string, size: 'full' | 'thumb'): Promise<Blob | undefined> {
+  return (await localDb().photos.get(`${id}:${size}`))?.blob
+}
