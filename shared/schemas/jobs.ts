@@ -22,6 +22,18 @@ export const jobFieldsSchema = z.object({
 })
 
 export const createJobSchema = jobFieldsSchema
-export const updateJobSchema = jobFieldsSchema.partial().refine(v => Object.keys(v).length > 0, { message: 'Nothing to change.' })
+// Not jobFieldsSchema.partial(): zod 4 still applies a field's default inside .optional(), so a
+// PATCH naming only the title would reset every other field. The defaults are taken off first.
+const f = jobFieldsSchema.shape
+export const updateJobSchema = z.object({
+  title: f.title.optional(),
+  workAreaId: f.workAreaId.unwrap().optional(),
+  purpose: f.purpose.unwrap().optional(),
+  hazards: f.hazards.unwrap().optional(),
+  ppe: f.ppe.unwrap().optional(),
+  toolsAndMaterials: f.toolsAndMaterials.unwrap().optional(),
+  workplaceArrangement: f.workplaceArrangement.unwrap().optional(),
+  coverageTarget: f.coverageTarget.unwrap().optional(),
+}).refine(v => Object.values(v).some(value => value !== undefined), { message: 'Nothing to change.' })
 
 export type JobFields = z.output<typeof jobFieldsSchema>

@@ -1,5 +1,6 @@
 // No request ever reads or writes another organisation's data: B's ids with A's session answer 404,
 // and B's rows are unchanged afterwards.
+import { randomUUID } from 'node:crypto'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { startServer, type TestServer } from '../support/server'
 import { addMember, signUp, uniqueEmail } from '../support/accounts'
@@ -16,8 +17,21 @@ beforeAll(async () => {
   bIds.member = (await addMember(server, b.client, 'coach')).membershipId
   bIds.area = (await b.client.post('/api/work-areas', { name: 'B ovens' })).body.id
   bIds.invite = (await b.client.post('/api/invites', { email: uniqueEmail('b-invitee'), role: 'learner' })).body.id
+  // B's job with a published version and a draft (saved once, so at revision 1).
+  bIds.job = (await b.client.post('/api/jobs', { title: 'B proofing', workAreaId: bIds.area })).body.id
+  bIds.published = (await b.client.post(`/api/jobs/${bIds.job}/versions`)).body.id
+  await b.client.patch(`/api/versions/${bIds.published}`, { revision: 0, content: bContent('Load the proofer') })
+  await b.client.post(`/api/versions/${bIds.published}/publish`, { changeNote: 'First.' })
+  bIds.draft = (await b.client.post(`/api/jobs/${bIds.job}/versions`)).body.id
+  await b.client.patch(`/api/versions/${bIds.draft}`, { revision: 0, content: bContent('Load the proofer rack') })
 }, 120_000)
 afterAll(() => server?.stop())
+
+const bUnitId = randomUUID()
+const bStepId = randomUUID()
+function bContent(text: string) {
+  return { units: [{ id: bUnitId, title: '', steps: [{ id: bStepId, text, photoId: null, keyPoints: [] }] }] }
+}
 
 describe('cross-organisation', () => {
   const attempts: Array<[string, string, () => string, unknown?]> = [
@@ -26,6 +40,17 @@ describe('cross-organisation', () => {
     ['PATCH', 'work area', () => `/api/work-areas/${bIds.area}`, { name: 'Taken over' }],
     ['DELETE', 'work area', () => `/api/work-areas/${bIds.area}`],
     ['DELETE', 'invite', () => `/api/invites/${bIds.invite}`],
+    ['GET', 'job', () => `/api/jobs/${bIds.job}`],
+    ['PATCH', 'job', () => `/api/jobs/${bIds.job}`, { title: 'Taken over' }],
+    ['DELETE', 'job', () => `/api/jobs/${bIds.job}`],
+    ['GET', 'job\'s versions', () => `/api/jobs/${bIds.job}/versions`],
+    ['POST', 'job (new draft)', () => `/api/jobs/${bIds.job}/versions`],
+    ['GET', 'draft version', () => `/api/versions/${bIds.draft}`],
+    ['GET', 'published version', () => `/api/versions/${bIds.published}`],
+    ['PATCH', 'draft version', () => `/api/versions/${bIds.draft}`, { revision: 1, content: bContent('Taken over') }],
+    ['POST', 'draft version (publish)', () => `/api/versions/${bIds.draft}/publish`, { changeNote: 'Taken over' }],
+    ['POST', 'published version (retire)', () => `/api/versions/${bIds.published}/retire`],
+    ['GET', 'published version (export)', () => `/api/versions/${bIds.published}/export`],
   ]
 
   it.each(attempts)('%s of B\'s %s with A\'s admin session answers 404', async (method, _what, path, body) => {
@@ -46,6 +71,12 @@ describe('cross-organisation', () => {
     expect((await a.client.get('/api/invites')).body).toEqual([])
     const audit = (await a.client.get('/api/audit')).body as Array<{ targetId: string }>
     expect(audit.map(e => e.targetId)).not.toContain(bIds.area)
+
+    const bJob = (await b.client.get(`/api/jobs/${bIds.job}`)).body
+    expect(bJob).toMatchObject({ title: 'B proofing', archivedAt: null, workAreaId: bIds.area })
+    expect(bJob.versions.map((v: { id: string, status: string }) => [v.id, v.status])).toEqual([[bIds.draft, 'draft'], [bIds.published, 'published']])
+    expect((await b.client.get(`/api/versions/${bIds.draft}`)).body).toMatchObject({ revision: 1, content: bContent('Load the proofer rack') })
+    expect((await a.client.get('/api/jobs?archived=1')).body).toEqual([])
   })
 
   it('lets A use the same work area name as B', async () => {

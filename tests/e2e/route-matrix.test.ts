@@ -39,6 +39,22 @@ export const MATRIX: Record<string, Entry> = {
   'DELETE /api/members/[id]': { access: ['admin'], path: () => `/api/members/${missingId()}` },
   'PATCH /api/organisation': { access: ['admin'], body: () => ({ coachesMayPublish: true }) },
   'GET /api/audit': { access: ['admin', 'auditor'] },
+  'GET /api/jobs': { access: 'signed-in' },
+  'POST /api/jobs': { access: ['admin', 'coach'], body: () => ({ title: `Matrix job ${randomUUID()}` }) },
+  'GET /api/jobs/[id]': { access: 'signed-in', path: () => `/api/jobs/${missingId()}` },
+  'PATCH /api/jobs/[id]': { access: ['admin', 'coach'], path: () => `/api/jobs/${missingId()}`, body: () => ({ title: 'Renamed job' }) },
+  'DELETE /api/jobs/[id]': { access: ['admin', 'coach'], path: () => `/api/jobs/${missingId()}` },
+  'GET /api/jobs/[id]/versions': { access: ['admin', 'coach', 'auditor'], path: () => `/api/jobs/${missingId()}/versions` },
+  'POST /api/jobs/[id]/versions': { access: ['admin', 'coach'], path: () => `/api/jobs/${missingId()}/versions` },
+  'POST /api/jobs/import': { access: ['admin', 'coach'], body: () => ({ format: 'fourfold.breakdown', formatVersion: 1, exportedAt: new Date().toISOString(), job: { title: 'Imported job' }, version: { number: 1, status: 'draft' }, breakdown: { units: [{ id: randomUUID(), title: '', steps: [] }] } }) },
+  // Learners may call it; for them a draft answers 404 like a missing version (tests/e2e/breakdowns.test.ts).
+  'GET /api/versions/[id]': { access: 'signed-in', path: () => `/api/versions/${missingId()}` },
+  'PATCH /api/versions/[id]': { access: ['admin', 'coach'], path: () => `/api/versions/${missingId()}`, body: () => ({ revision: 0, content: { units: [{ id: randomUUID(), title: '', steps: [] }] } }) },
+  // Coaches are allowed here because 'PATCH /api/organisation' above, run as admin, turned coachesMayPublish on;
+  // the refusal while it is off is tested in tests/e2e/breakdowns.test.ts.
+  'POST /api/versions/[id]/publish': { access: ['admin', 'coach'], path: () => `/api/versions/${missingId()}/publish`, body: () => ({ changeNote: 'Matrix change' }) },
+  'POST /api/versions/[id]/retire': { access: ['admin', 'coach'], path: () => `/api/versions/${missingId()}/retire` },
+  'GET /api/versions/[id]/export': { access: ['admin', 'coach', 'auditor'], path: () => `/api/versions/${missingId()}/export` },
 }
 
 function routeFiles(dir: string): string[] {
