@@ -4,6 +4,7 @@ import { randomUUID } from 'node:crypto'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { startServer, type TestServer } from '../support/server'
 import { addMember, signUp, uniqueEmail } from '../support/accounts'
+import { photoForm } from '../support/photos'
 
 let server: TestServer
 let a: Awaited<ReturnType<typeof signUp>>
@@ -24,6 +25,7 @@ beforeAll(async () => {
   await b.client.post(`/api/versions/${bIds.published}/publish`, { changeNote: 'First.' })
   bIds.draft = (await b.client.post(`/api/jobs/${bIds.job}/versions`)).body.id
   await b.client.patch(`/api/versions/${bIds.draft}`, { revision: 0, content: bContent('Load the proofer rack') })
+  bIds.photo = (await b.client.post('/api/uploads', photoForm())).body.id
 }, 120_000)
 afterAll(() => server?.stop())
 
@@ -51,6 +53,8 @@ describe('cross-organisation', () => {
     ['POST', 'draft version (publish)', () => `/api/versions/${bIds.draft}/publish`, { changeNote: 'Taken over' }],
     ['POST', 'published version (retire)', () => `/api/versions/${bIds.published}/retire`],
     ['GET', 'published version (export)', () => `/api/versions/${bIds.published}/export`],
+    ['GET', 'photo', () => `/api/uploads/${bIds.photo}`],
+    ['GET', 'photo thumbnail', () => `/api/uploads/${bIds.photo}?size=thumb`],
   ]
 
   it.each(attempts)('%s of B\'s %s with A\'s admin session answers 404', async (method, _what, path, body) => {

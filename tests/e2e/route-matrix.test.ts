@@ -7,6 +7,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { startServer, type TestServer } from '../support/server'
 import { Client, uniqueAddress } from '../support/http'
 import { addMember, signUp, uniqueEmail } from '../support/accounts'
+import { photoForm } from '../support/photos'
 import { ROLES, type Role } from '../../shared/types/roles'
 
 type Access = 'public' | 'signed-in' | Role[]
@@ -55,6 +56,9 @@ export const MATRIX: Record<string, Entry> = {
   'POST /api/versions/[id]/publish': { access: ['admin', 'coach'], path: () => `/api/versions/${missingId()}/publish`, body: () => ({ changeNote: 'Matrix change' }) },
   'POST /api/versions/[id]/retire': { access: ['admin', 'coach'], path: () => `/api/versions/${missingId()}/retire` },
   'GET /api/versions/[id]/export': { access: ['admin', 'coach', 'auditor'], path: () => `/api/versions/${missingId()}/export` },
+  // A real photo (multipart, sent as FormData by the client).
+  'POST /api/uploads': { access: ['coach', 'admin'], body: () => photoForm() },
+  'GET /api/uploads/[id]': { access: 'signed-in', path: () => `/api/uploads/${missingId()}` },
 }
 
 function routeFiles(dir: string): string[] {

@@ -1,5 +1,5 @@
 // A tiny HTTP client with a cookie jar, so a test can act as one signed-in person.
-export interface Reply<T = any> { status: number, headers: Headers, body: T, text: string }
+export interface Reply<T = any> { status: number, headers: Headers, body: T, text: string, bytes: Buffer }
 
 export class Client {
   private cookies = new Map<string, string>()
@@ -16,18 +16,20 @@ export class Client {
     return this.cookies.size > 0
   }
 
+  /** A body is sent as JSON, except a string (sent as given) and FormData (multipart, for uploads). */
   async request<T = any>(method: string, path: string, body?: unknown, headers: Record<string, string> = {}): Promise<Reply<T>> {
+    const multipart = body instanceof FormData
     const init: RequestInit = {
       method,
       redirect: 'manual',
       headers: {
         'x-forwarded-for': this.address,
-        ...(body !== undefined && typeof body !== 'string' ? { 'content-type': 'application/json' } : {}),
+        ...(body !== undefined && typeof body !== 'string' && !multipart ? { 'content-type': 'application/json' } : {}),
         ...(typeof body === 'string' ? { 'content-type': 'application/json' } : {}),
         ...(this.cookies.size ? { cookie: [...this.cookies].map(([k, v]) => `${k}=${v}`).join('; ') } : {}),
         ...headers,
       },
-      body: body === undefined ? undefined : typeof body === 'string' ? body : JSON.stringify(body),
+      body: body === undefined ? undefined : multipart ? body : typeof body === 'string' ? body : JSON.stringify(body),
     }
     const res = await fetch(this.base + path, init)
     for (const line of res.headers.getSetCookie()) {
@@ -38,13 +40,14 @@ export class Client {
       if (!value || /max-age=0/i.test(line) || /expires=Thu, 01 Jan 1970/i.test(line)) this.cookies.delete(name)
       else this.cookies.set(name, value)
     }
-    const text = await res.text()
+    const bytes = Buffer.from(await res.arrayBuffer())
+    const text = bytes.toString('utf8')
     let parsed: unknown = text
     try {
       parsed = text ? JSON.parse(text) : null
     }
     catch { /* not JSON */ }
-    return { status: res.status, headers: res.headers, body: parsed as T, text }
+    return { status: res.status, headers: res.headers, body: parsed as T, text, bytes }
   }
 
   get<T = any>(path: string) {

@@ -46,6 +46,7 @@ export async function startServer(options: { env?: Record<string, string | undef
     HOST: '127.0.0.1',
     DATABASE_URL: databaseUrl,
     MAIL_DIR: mailDir,
+    UPLOAD_DIR: join(dir, 'uploads'),
     SMTP_URL: '',
     MAIL_CAPTURE_PAGE: 'true',
     NUXT_APP_URL: url,
