@@ -1,7 +1,7 @@
 // The one Drizzle schema. Every organisation-scoped table carries organisation_id,
 // and every query against it filters by the caller's organisation (see requireRole).
 import { sql } from 'drizzle-orm'
-import { index, integer, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core'
+import { index, integer, real, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core'
 import { ROLES } from '../../shared/types/roles'
 import { VERSION_STATUSES, type HazardCategory } from '../../shared/types/breakdown'
 import type { BreakdownContent } from '../../shared/schemas/breakdown'
@@ -176,3 +176,72 @@ export const learners = sqliteTable('learners', {
 }, t => [index('learners_org_idx').on(t.organisationId)])
 
 export type Learner = typeof learners.$inferSelect
+
+// ---- Lessons and sync -------------------------------------------------------------------
+
+// A lesson as the tablets send it. Its id is made on the tablet. Fields merge last-writer-wins
+// by (signed off first, then client time, then device id); see server/utils/sync-merge.ts.
+export const lessons = sqliteTable('lessons', {
+  id: id(),
+  organisationId: text('organisation_id').notNull().references(() => organisations.id, { onDelete: 'cascade' }),
+  coachUserId: text('coach_user_id').references(() => users.id, { onDelete: 'set null' }),
+  learnerId: text('learner_id').notNull().references(() => learners.id, { onDelete: 'cascade' }),
+  jobId: text('job_id').notNull().references(() => jobs.id, { onDelete: 'cascade' }),
+  versionId: text('version_id').notNull().references(() => breakdownVersions.id, { onDelete: 'cascade' }),
+  place: text('place').notNull().default(''),
+  startedAt: integer('started_at', { mode: 'timestamp_ms' }).notNull(),
+  prepare: text('prepare', { mode: 'json' }).$type<Record<string, { done: boolean, note: string }>>().notNull().default(sql`'{}'`),
+  helper: text('helper').notNull().default(''),
+  decision: text('decision', { enum: ['ready', 'another-pass'] }),
+  acknowledgement: text('acknowledgement', { mode: 'json' }).$type<{ name: string, signature: string | null, at: number } | null>(),
+  signedOffAt: integer('signed_off_at', { mode: 'timestamp_ms' }),
+  stageSeconds: text('stage_seconds', { mode: 'json' }).$type<Record<string, number>>().notNull().default(sql`'{}'`),
+  clientUpdatedAt: integer('client_updated_at').notNull(),
+  updatedByDevice: text('updated_by_device').notNull(),
+  createdAt: createdAt(),
+}, t => [
+  index('lessons_org_idx').on(t.organisationId),
+  index('lessons_learner_idx').on(t.organisationId, t.learnerId),
+])
+
+// Append-only marks and moves of a lesson (DESIGN.md §7). Undo is another event.
+export const lessonEvents = sqliteTable('lesson_events', {
+  id: id(),
+  organisationId: text('organisation_id').notNull(),
+  lessonId: text('lesson_id').notNull().references(() => lessons.id, { onDelete: 'cascade' }),
+  pass: text('pass').notNull(),
+  elementId: text('element_id'),
+  kind: text('kind').notNull(),
+  value: text('value'),
+  clientTime: integer('client_time').notNull(),
+  deviceId: text('device_id').notNull(),
+  seq: integer('seq').notNull(),
+  receivedAt: integer('received_at').notNull(),
+}, t => [index('lesson_events_lesson_idx').on(t.lessonId)])
+
+// Scores materialised at sync by the same shared/utils functions the tablet uses.
+export const lessonScores = sqliteTable('lesson_scores', {
+  lessonId: text('lesson_id').primaryKey().references(() => lessons.id, { onDelete: 'cascade' }),
+  organisationId: text('organisation_id').notNull(),
+  t1: real('t1'),
+  t2: real('t2'),
+  t3: real('t3'),
+  t4: real('t4'),
+  orderScore: real('order_score'),
+  recall: real('recall'),
+  readiness: text('readiness', { enum: ['ready', 'another-pass'] }).notNull(),
+  represent: text('represent', { mode: 'json' }).$type<unknown[]>().notNull(),
+  eventCount: integer('event_count').notNull(),
+  computedAt: integer('computed_at').notNull(),
+}, t => [index('lesson_scores_org_idx').on(t.organisationId)])
+
+// What changed, in commit order, for GET /api/sync?since=. The rowid is the cursor.
+export const changeFeed = sqliteTable('change_feed', {
+  seq: integer('seq').primaryKey({ autoIncrement: true }),
+  organisationId: text('organisation_id').notNull(),
+  entity: text('entity', { enum: ['lesson', 'version', 'learner', 'plan'] }).notNull(),
+  entityId: text('entity_id').notNull(),
+}, t => [index('change_feed_org_seq_idx').on(t.organisationId, t.seq)])
+
+export type Lesson = typeof lessons.$inferSelect
+export type LessonEventRow = typeof lessonEvents.$inferSelect

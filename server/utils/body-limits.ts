@@ -1,3 +1,5 @@
+import { SYNC_LIMITS } from '../../shared/schemas/sync'
+
 // How large a request body each route accepts. h3 reads bodies whole with no cap,
 // so the body-limit middleware enforces these before any route reads a byte more.
 const DEFAULT_LIMIT_BYTES = 256 * 1024
@@ -5,6 +7,8 @@ const DEFAULT_LIMIT_BYTES = 256 * 1024
 const ROUTE_LIMITS: Array<{ prefix: string, bytes: number }> = [
   // Photo uploads: 10 MB of image plus multipart framing.
   { prefix: '/api/uploads', bytes: 10 * 1024 * 1024 + 64 * 1024 },
+  // A tablet's push of lessons and marks (SYNC_LIMITS.bodyBytes); more waits for the next push.
+  { prefix: '/api/sync', bytes: SYNC_LIMITS.bodyBytes },
 ]
 
 export function bodyLimitFor(path: string): number {

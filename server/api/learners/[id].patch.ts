@@ -14,6 +14,7 @@ export default defineEventHandler(async (event) => {
   const [row] = await writeTransaction(async (tx) => {
     const rows = await tx.update(learners).set(changes).where(and(eq(learners.id, id), eq(learners.organisationId, caller.organisation.id)))
       .returning({ id: learners.id, name: learners.name, reference: learners.reference, workAreaId: learners.workAreaId, archivedAt: learners.archivedAt })
+    if (rows.length) await recordChange(tx, caller.organisation.id, 'learner', id)
     if (rows.length) await recordAudit(tx, { organisationId: caller.organisation.id, actorUserId: caller.user.id, action: 'learner.updated', targetType: 'learner', targetId: id, detail: { ...fields, archived } })
     return rows
   })

@@ -10,6 +10,7 @@ export default defineEventHandler(async (event) => {
   const learner = { id: randomUUID(), organisationId: caller.organisation.id, ...input }
   await writeTransaction(async (tx) => {
     await tx.insert(learners).values(learner)
+    await recordChange(tx, caller.organisation.id, 'learner', learner.id)
     await recordAudit(tx, { organisationId: caller.organisation.id, actorUserId: caller.user.id, action: 'learner.created', targetType: 'learner', targetId: learner.id, detail: { name: learner.name } })
   })
   setResponseStatus(event, 201)

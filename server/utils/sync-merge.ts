@@ -1,0 +1,290 @@
+// Merges one device's push into SQLite (DESIGN.md §7, issue 5):
+// - events are append-only, inserted by id; the same id with the same content is a no-op and the
+//   same id with other content is rejected as a conflict, never overwritten;
+// - lesson fields merge last-writer-wins on (signed off, client time, device id), so any order of
+//   arrival ends in the same row; a signed-off lesson then only takes an acknowledgement;
+// - scores of every touched lesson are recomputed from all its events with shared/utils.
+// The hot path uses the libSQL client directly: chunked multi-row inserts inside one write
+// transaction, yielding to the event loop between chunks so other requests keep moving.
+import type { Client, InStatement, Transaction } from '@libsql/client'
+import type { z } from 'zod'
+import { syncEventSchema, syncLessonSchema, type SyncEvent, type SyncLesson } from '../../shared/schemas/sync'
+import type { BreakdownContent } from '../../shared/schemas/breakdown'
+import { replayLesson } from '../../shared/utils/lesson-state'
+import { serialiseWrite } from './write-lock'
+import type { LessonEvent } from '../../shared/utils/lesson-events'
+
+export interface Rejection { id: string, reason: string }
+export interface LessonScore { t1: number | null, t2: number | null, t3: number | null, t4: number | null, order: number | null, recall: number | null, readiness: 'ready' | 'another-pass', represent: unknown[] }
+export interface MergeResult { accepted: string[], rejected: Rejection[], scores: Record<string, LessonScore>, cursor: number, written: { lessons: number, events: number } }
+
+// SQLite allows 32,766 bound variables per statement; 500 rows × 12 columns stays far below.
+const CHUNK = 500
+const yieldToLoop = () => new Promise<void>(resolve => setImmediate(resolve))
+
+function chunks<T>(items: readonly T[], size = CHUNK): T[][] {
+  const out: T[][] = []
+  for (let i = 0; i < items.length; i += size) out.push(items.slice(i, i + size))
+  return out
+}
+
+function placeholders(n: number) {
+  return Array.from({ length: n }, () => '?').join(',')
+}
+
+function describeIssues(error: z.ZodError): string {
+  const first = error.issues[0]
+  return first ? `${first.path.join('.') || 'item'}: ${first.message}` : 'not valid'
+}
+
+function idOf(item: unknown): string {
+  const id = (item as { id?: unknown } | null)?.id
+  return typeof id === 'string' ? id.slice(0, 80) : '(no id)'
+}
+
+async function selectIn(runner: Client | Transaction, sqlBefore: string, ids: readonly string[], sqlAfter = '', extraArgs: Array<string | number> = []) {
+  const rows: Record<string, unknown>[] = []
+  for (const part of chunks([...new Set(ids)])) {
+    const rs = await runner.execute({ sql: `${sqlBefore} (${placeholders(part.length)}) ${sqlAfter}`, args: [...extraArgs, ...part] })
+    rows.push(...(rs.rows as unknown as Record<string, unknown>[]))
+  }
+  return rows
+}
+
+type Clock = [number, number, string, string]
+
+/**
+ * Newer wins: a signed-off state beats any open one, then the later client time, then the device
+ * id, and last the content itself, so even two different states stamped in the same millisecond
+ * on one tablet settle the same way whatever order they arrive in.
+ */
+function lessonClock(l: { signedOffAt: number | null, updatedAt: number, deviceId: string }, fields: string): Clock {
+  return [l.signedOffAt ? 1 : 0, l.updatedAt, l.deviceId, fields]
+}
+
+function newer(a: Clock, b: Clock) {
+  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return a[i]! > b[i]!
+  return false
+}
+
+function mergeableFields(l: { coachUserId: string | null, place: string, startedAt: number, prepare: unknown, helper: string, decision: string | null, signedOffAt: number | null, stageSeconds: unknown }) {
+  return JSON.stringify([l.coachUserId, l.place, l.startedAt, l.prepare, l.helper, l.decision, l.signedOffAt, l.stageSeconds])
+}
+
+function storedFields(row: Record<string, unknown>) {
+  return mergeableFields({ coachUserId: row.coach_user_id as string | null, place: row.place as string, startedAt: Number(row.started_at), prepare: JSON.parse(String(row.prepare ?? '{}')), helper: row.helper as string, decision: (row.decision as string | null) ?? null, signedOffAt: row.signed_off_at == null ? null : Number(row.signed_off_at), stageSeconds: JSON.parse(String(row.stage_seconds ?? '{}')) })
+}
+
+function ackKey(ack: { at: number, name: string } | null) {
+  return ack ? `${String(ack.at).padStart(16, '0')}|${ack.name}` : ''
+}
+
+function sameEvent(row: Record<string, unknown>, e: SyncEvent) {
+  return row.lesson_id === e.lessonId && row.pass === e.pass && (row.element_id ?? null) === e.elementId && row.kind === e.kind
+    && (row.value ?? null) === e.value && Number(row.client_time) === e.clientTime && row.device_id === e.deviceId && Number(row.seq) === e.seq
+}
+
+export async function mergePush(client: Client, organisationId: string, deviceId: string, body: { lessons: unknown[], events: unknown[], checks: unknown[] }, now = Date.now()): Promise<MergeResult> {
+  const accepted: string[] = []
+  const rejected: Rejection[] = []
+
+  // 1. Each item on its own.
+  const lessons: SyncLesson[] = []
+  for (const item of body.lessons) {
+    const r = syncLessonSchema.safeParse(item)
+    if (r.success) lessons.push(r.data)
+    else rejected.push({ id: idOf(item), reason: `Lesson not valid — ${describeIssues(r.error)}` })
+  }
+  const events: SyncEvent[] = []
+  const seenInPush = new Map<string, SyncEvent>()
+  for (const item of body.events) {
+    const r = syncEventSchema.safeParse(item)
+    if (!r.success) {
+      rejected.push({ id: idOf(item), reason: `Mark not valid — ${describeIssues(r.error)}` })
+      continue
+    }
+    const e = r.data
+    if (e.deviceId !== deviceId) {
+      rejected.push({ id: e.id, reason: 'This mark was recorded on another tablet; that tablet must send it.' })
+      continue
+    }
+    const twin = seenInPush.get(e.id)
+    if (twin) {
+      if (JSON.stringify(twin) !== JSON.stringify(e)) rejected.push({ id: e.id, reason: 'The same mark id appears twice in this push with different content.' })
+      continue
+    }
+    seenInPush.set(e.id, e)
+    events.push(e)
+  }
+  for (const item of body.checks) rejected.push({ id: idOf(item), reason: 'Spot checks cannot be sent yet; keep them on the tablet until this server is updated.' })
+
+  // 2. Every id a lesson names must belong to this organisation.
+  const idsIn = async (table: string, ids: string[], extra = '') => new Set((await selectIn(client, `select id from ${table} where organisation_id = ? ${extra} and id in`, ids, '', [organisationId])).map(r => r.id as string))
+  const learnerIds = await idsIn('learners', lessons.map(l => l.learnerId))
+  const jobIds = await idsIn('jobs', lessons.map(l => l.jobId))
+  const versionRows = await selectIn(client, 'select id, job_id, status from breakdown_versions where organisation_id = ? and id in', lessons.map(l => l.versionId), '', [organisationId])
+  const versionsById = new Map(versionRows.map(r => [r.id as string, r]))
+  const coachRows = await selectIn(client, 'select user_id from memberships where organisation_id = ? and role in (\'admin\', \'coach\') and user_id in', lessons.map(l => l.coachUserId), '', [organisationId])
+  const coachIds = new Set(coachRows.map(r => r.user_id as string))
+  const validLessons = lessons.filter((l) => {
+    const v = versionsById.get(l.versionId)
+    const reason = !learnerIds.has(l.learnerId)
+      ? 'The learner is not in this organisation\'s roster.'
+      : !jobIds.has(l.jobId)
+          ? 'The job is not one of this organisation\'s jobs.'
+          : !v || v.job_id !== l.jobId
+              ? 'The breakdown version does not belong to this job.'
+              : v.status === 'draft'
+                ? 'A lesson must be pinned to a published breakdown, not a draft.'
+                : !coachIds.has(l.coachUserId)
+                    ? 'The coach is not a coach or admin of this organisation.'
+                    : ''
+    if (reason) rejected.push({ id: l.id, reason })
+    return !reason
+  })
+
+  return serialiseWrite(async () => {
+    const tx = await client.transaction('write')
+    try {
+      const result = await writeMerge(tx, organisationId, deviceId, validLessons, events, now, accepted, rejected)
+      await tx.commit()
+      return result
+    }
+    finally {
+      tx.close()
+    }
+  })
+}
+
+async function writeMerge(tx: Transaction, organisationId: string, deviceId: string, lessons: SyncLesson[], events: SyncEvent[], now: number, accepted: string[], rejected: Rejection[]): Promise<MergeResult> {
+  const touched = new Set<string>()
+  const feed = new Set<string>()
+  let lessonsWritten = 0
+  let eventsWritten = 0
+
+  // 3. Lessons: the newest copy of each in this push (and the latest acknowledgement any copy
+  // carries), then insert new ones and merge known ones.
+  const newest = new Map<string, SyncLesson>()
+  for (const l of lessons) {
+    const seen = newest.get(l.id)
+    const ack = seen && ackKey(seen.acknowledgement) > ackKey(l.acknowledgement) ? seen.acknowledgement : l.acknowledgement
+    const winner = !seen || newer(lessonClock({ ...l, deviceId }, mergeableFields(l)), lessonClock({ ...seen, deviceId }, mergeableFields(seen))) ? l : seen
+    newest.set(l.id, { ...winner, acknowledgement: ack })
+  }
+  const existing = new Map((await selectIn(tx, 'select * from lessons where id in', [...newest.keys()])).map(r => [r.id as string, r]))
+  const statements: InStatement[] = []
+  for (const l of newest.values()) {
+    const row = existing.get(l.id)
+    if (!row) {
+      statements.push({
+        sql: 'insert into lessons (id, organisation_id, coach_user_id, learner_id, job_id, version_id, place, started_at, prepare, helper, decision, acknowledgement, signed_off_at, stage_seconds, client_updated_at, updated_by_device, created_at) values (?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?)',
+        args: [l.id, organisationId, l.coachUserId, l.learnerId, l.jobId, l.versionId, l.place, l.startedAt, JSON.stringify(l.prepare), l.helper, l.decision, l.acknowledgement ? JSON.stringify(l.acknowledgement) : null, l.signedOffAt, JSON.stringify(l.stageSeconds), l.updatedAt, deviceId, now],
+      })
+      existing.set(l.id, { id: l.id, organisation_id: organisationId, coach_user_id: l.coachUserId, learner_id: l.learnerId, job_id: l.jobId, version_id: l.versionId, place: l.place, started_at: l.startedAt, prepare: JSON.stringify(l.prepare), helper: l.helper, decision: l.decision, signed_off_at: l.signedOffAt, stage_seconds: JSON.stringify(l.stageSeconds), client_updated_at: l.updatedAt, updated_by_device: deviceId, acknowledgement: l.acknowledgement ? JSON.stringify(l.acknowledgement) : null })
+      accepted.push(l.id)
+      touched.add(l.id)
+      feed.add(l.id)
+      lessonsWritten++
+      continue
+    }
+    if (row.organisation_id !== organisationId) {
+      rejected.push({ id: l.id, reason: 'This lesson id is already used elsewhere; start the lesson again on the tablet.' })
+      continue
+    }
+    if (row.learner_id !== l.learnerId || row.job_id !== l.jobId || row.version_id !== l.versionId) {
+      rejected.push({ id: l.id, reason: 'A lesson\'s learner, job and breakdown version cannot change after it starts.' })
+      continue
+    }
+    const stored = { signedOffAt: row.signed_off_at as number | null, updatedAt: Number(row.client_updated_at), deviceId: row.updated_by_device as string }
+    const storedAck = row.acknowledgement ? JSON.parse(row.acknowledgement as string) as { at: number, name: string } : null
+    const ackWins = ackKey(l.acknowledgement) > ackKey(storedAck)
+    if (newer(lessonClock({ signedOffAt: l.signedOffAt, updatedAt: l.updatedAt, deviceId }, mergeableFields(l)), lessonClock(stored, storedFields(row)))) {
+      if (stored.signedOffAt && !l.signedOffAt) {
+        // Cannot happen by the clock above; kept as the rule in words.
+        rejected.push({ id: l.id, reason: 'This lesson was signed off; only the learner\'s acknowledgement can still be added.' })
+        continue
+      }
+      const ack = ackWins ? l.acknowledgement : storedAck
+      statements.push({
+        sql: 'update lessons set coach_user_id=?, place=?, started_at=?, prepare=?, helper=?, decision=?, acknowledgement=?, signed_off_at=?, stage_seconds=?, client_updated_at=?, updated_by_device=? where id=? and organisation_id=?',
+        args: [l.coachUserId, l.place, l.startedAt, JSON.stringify(l.prepare), l.helper, l.decision, ack ? JSON.stringify(ack) : null, l.signedOffAt, JSON.stringify(l.stageSeconds), l.updatedAt, deviceId, l.id, organisationId],
+      })
+      feed.add(l.id)
+      touched.add(l.id)
+      lessonsWritten++
+    }
+    else if (ackWins) {
+      // An older copy can still bring the acknowledgement the learner gave on that tablet.
+      statements.push({ sql: 'update lessons set acknowledgement=? where id=? and organisation_id=?', args: [JSON.stringify(l.acknowledgement), l.id, organisationId] })
+      feed.add(l.id)
+      lessonsWritten++
+    }
+    else if (stored.signedOffAt && !l.signedOffAt && l.updatedAt > stored.updatedAt) {
+      rejected.push({ id: l.id, reason: 'This lesson was signed off; only the learner\'s acknowledgement can still be added.' })
+      continue
+    }
+    accepted.push(l.id)
+  }
+  for (const part of chunks(statements, 200)) {
+    await tx.batch(part)
+    await yieldToLoop()
+  }
+
+  // 4. Events: by id, never overwritten.
+  const knownLessons = new Set((await selectIn(tx, 'select id from lessons where organisation_id = ? and id in', events.map(e => e.lessonId), '', [organisationId])).map(r => r.id as string))
+  const existingEvents = new Map((await selectIn(tx, 'select * from lesson_events where id in', events.map(e => e.id))).map(r => [r.id as string, r]))
+  const fresh: SyncEvent[] = []
+  for (const e of events) {
+    const row = existingEvents.get(e.id)
+    if (row) {
+      if (row.organisation_id === organisationId && sameEvent(row, e)) accepted.push(e.id)
+      else rejected.push({ id: e.id, reason: 'A different mark with this id is already stored; this one was not saved. Keep it on the tablet and tell your admin.' })
+      continue
+    }
+    if (!knownLessons.has(e.lessonId)) {
+      rejected.push({ id: e.id, reason: 'The lesson of this mark is not on the server yet; send the lesson with it.' })
+      continue
+    }
+    fresh.push(e)
+  }
+  for (const part of chunks(fresh)) {
+    await tx.execute({
+      sql: `insert into lesson_events (id, organisation_id, lesson_id, pass, element_id, kind, value, client_time, device_id, seq, received_at) values ${part.map(() => '(?,?,?,?,?,?,?,?,?,?,?)').join(',')}`,
+      args: part.flatMap(e => [e.id, organisationId, e.lessonId, e.pass, e.elementId, e.kind, e.value, e.clientTime, e.deviceId, e.seq, now]),
+    })
+    for (const e of part) {
+      accepted.push(e.id)
+      touched.add(e.lessonId)
+      feed.add(e.lessonId)
+    }
+    eventsWritten += part.length
+    await yieldToLoop()
+  }
+
+  // 5. Scores of every touched lesson, from all of its events.
+  const scores: Record<string, LessonScore> = {}
+  for (const lessonId of touched) {
+    scores[lessonId] = await rescore(tx, organisationId, lessonId, now)
+    await yieldToLoop()
+  }
+  for (const part of chunks([...feed])) {
+    await tx.execute({ sql: `insert into change_feed (organisation_id, entity, entity_id) values ${part.map(() => '(?, \'lesson\', ?)').join(',')}`, args: part.flatMap(id => [organisationId, id]) })
+  }
+  const cursor = Number((await tx.execute({ sql: 'select coalesce(max(seq), 0) as c from change_feed where organisation_id = ?', args: [organisationId] })).rows[0]!.c)
+  return { accepted, rejected, scores, cursor, written: { lessons: lessonsWritten, events: eventsWritten } }
+}
+
+export async function rescore(tx: Transaction | Client, organisationId: string, lessonId: string, now = Date.now()): Promise<LessonScore> {
+  const versionRow = (await tx.execute({ sql: 'select v.content from lessons l join breakdown_versions v on v.id = l.version_id where l.id = ? and l.organisation_id = ?', args: [lessonId, organisationId] })).rows[0]
+  const content = JSON.parse(versionRow!.content as string) as BreakdownContent
+  const rows = (await tx.execute({ sql: 'select id, lesson_id, pass, element_id, kind, value, client_time, device_id, seq from lesson_events where lesson_id = ? and organisation_id = ?', args: [lessonId, organisationId] })).rows
+  const events: LessonEvent[] = rows.map(r => ({ id: r.id as string, lessonId: r.lesson_id as string, pass: r.pass as string, elementId: (r.element_id as string | null) ?? null, kind: r.kind as LessonEvent['kind'], value: (r.value as string | null) ?? null, clientTime: Number(r.client_time), deviceId: r.device_id as string, seq: Number(r.seq) }))
+  const state = replayLesson(events, content)
+  const score: LessonScore = { t1: state.scores.T1, t2: state.scores.T2, t3: state.scores.T3, t4: state.scores.T4, order: state.scores.order, recall: state.scores.recall, readiness: state.readiness.suggestion, represent: state.readiness.represent }
+  await tx.execute({
+    sql: `insert into lesson_scores (lesson_id, organisation_id, t1, t2, t3, t4, order_score, recall, readiness, represent, event_count, computed_at) values (?,?,?,?,?,?,?,?,?,?,?,?)
+          on conflict(lesson_id) do update set t1=excluded.t1, t2=excluded.t2, t3=excluded.t3, t4=excluded.t4, order_score=excluded.order_score, recall=excluded.recall, readiness=excluded.readiness, represent=excluded.represent, event_count=excluded.event_count, computed_at=excluded.computed_at`,
+    args: [lessonId, organisationId, score.t1, score.t2, score.t3, score.t4, score.order, score.recall, score.readiness, JSON.stringify(score.represent), events.length, now],
+  })
+  return score
+}
