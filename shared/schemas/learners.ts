@@ -8,6 +8,12 @@ export const learnerFieldsSchema = z.object({
 })
 
 export const createLearnerSchema = learnerFieldsSchema
-export const updateLearnerSchema = learnerFieldsSchema.partial().extend({
+// Not .partial(): zod 4 applies a field's default inside .optional(), so a PATCH naming one
+// field would reset the others. The defaults are taken off first.
+const f = learnerFieldsSchema.shape
+export const updateLearnerSchema = z.object({
+  name: f.name.optional(),
+  workAreaId: f.workAreaId.unwrap().optional(),
+  reference: f.reference.unwrap().optional(),
   archived: z.boolean({ error: 'Choose yes or no.' }).optional(),
-}).refine(v => Object.keys(v).length > 0, { message: 'Nothing to change.' })
+}).refine(v => Object.values(v).some(value => value !== undefined), { message: 'Nothing to change.' })

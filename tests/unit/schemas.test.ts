@@ -60,3 +60,11 @@ describe('account schemas', () => {
     expect(updateOrganisationSchema.safeParse({ coachesMayPublish: true }).success).toBe(true)
   })
 })
+
+describe('roster schema', async () => {
+  const { updateLearnerSchema } = await import('../../shared/schemas/learners')
+  it('changes only the fields a PATCH names', () => {
+    expect(updateLearnerSchema.parse({ reference: 'HB-1' })).toEqual({ reference: 'HB-1' })
+    expect(updateLearnerSchema.safeParse({}).success).toBe(false)
+  })
+})
