@@ -18,6 +18,7 @@ beforeAll(async () => {
   bIds.member = (await addMember(server, b.client, 'coach')).membershipId
   bIds.area = (await b.client.post('/api/work-areas', { name: 'B ovens' })).body.id
   bIds.invite = (await b.client.post('/api/invites', { email: uniqueEmail('b-invitee'), role: 'learner' })).body.id
+  bIds.learner = (await b.client.post('/api/learners', { name: 'B Learner' })).body.id
   // B's job with a published version and a draft (saved once, so at revision 1).
   bIds.job = (await b.client.post('/api/jobs', { title: 'B proofing', workAreaId: bIds.area })).body.id
   bIds.published = (await b.client.post(`/api/jobs/${bIds.job}/versions`)).body.id
@@ -42,6 +43,9 @@ describe('cross-organisation', () => {
     ['PATCH', 'work area', () => `/api/work-areas/${bIds.area}`, { name: 'Taken over' }],
     ['DELETE', 'work area', () => `/api/work-areas/${bIds.area}`],
     ['DELETE', 'invite', () => `/api/invites/${bIds.invite}`],
+    ['GET', 'learner', () => `/api/learners/${bIds.learner}`],
+    ['PATCH', 'learner', () => `/api/learners/${bIds.learner}`, { name: 'Taken over' }],
+    ['GET', 'learner\'s scores', () => `/api/learners/${bIds.learner}/scores`],
     ['GET', 'job', () => `/api/jobs/${bIds.job}`],
     ['PATCH', 'job', () => `/api/jobs/${bIds.job}`, { title: 'Taken over' }],
     ['DELETE', 'job', () => `/api/jobs/${bIds.job}`],
@@ -68,6 +72,8 @@ describe('cross-organisation', () => {
     expect(members.find(m => m.id === bIds.member)?.role).toBe('coach')
     expect((await b.client.get('/api/work-areas')).body).toEqual([{ id: bIds.area, name: 'B ovens' }])
     expect((await b.client.get('/api/invites')).body.map((i: { id: string }) => i.id)).toContain(bIds.invite)
+    expect((await b.client.get(`/api/learners/${bIds.learner}`)).body.name).toBe('B Learner')
+    expect((await a.client.get('/api/learners')).body).toEqual([])
 
     const aMembers = (await a.client.get('/api/members')).body as Array<{ id: string }>
     expect(aMembers.map(m => m.id)).not.toContain(bIds.member)
