@@ -150,3 +150,25 @@ describe('sync', () => {
     expect(after.rows[0]).toEqual(before.rows[0])
   }, 300_000)
 })
+
+describe('sync pull after breakdown changes', () => {
+  it('brings a newly published version and takes the retired one and archived jobs away', async () => {
+    const start = (await coach.client.get('/api/sync?since=0')).body.cursor
+    const draft = await admin.client.post(`/api/jobs/${job.jobId}/versions`)
+    const content = structuredClone(draft.body.content)
+    content.units[0].steps[1].text = 'Swing the blade guard open'
+    await admin.client.patch(`/api/versions/${draft.body.id}`, { revision: draft.body.revision, content })
+    await admin.client.post(`/api/versions/${draft.body.id}/publish`, { changeNote: 'Reworded step 2.' })
+    const pulled = (await coach.client.get(`/api/sync?since=${start}`)).body
+    expect(pulled.versions.map((v: { id: string }) => v.id)).toEqual([draft.body.id])
+    expect(pulled.removedVersions).toEqual([job.versionId])
+
+    const other = await publishedJob(admin.client, undefined, 'Check-weigh a tray')
+    const mid = (await coach.client.get('/api/sync?since=0')).body.cursor
+    await admin.client.patch(`/api/jobs/${other.jobId}`, { title: 'Check-weigh a tray of rolls' })
+    expect((await coach.client.get(`/api/sync?since=${mid}`)).body.versions.map((v: { job: { title: string } }) => v.job.title)).toEqual(['Check-weigh a tray of rolls'])
+    await admin.client.delete(`/api/jobs/${other.jobId}`)
+    const gone = (await coach.client.get(`/api/sync?since=${mid}`)).body
+    expect(gone.removedVersions).toContain(other.versionId)
+  })
+})

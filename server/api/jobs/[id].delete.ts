@@ -14,6 +14,7 @@ export default defineEventHandler(async (event) => {
     if (job.archivedAt) return true
     const now = new Date()
     await tx.update(jobs).set({ archivedAt: now, updatedAt: now }).where(and(eq(jobs.id, id), eq(jobs.organisationId, organisationId)))
+    await recordJobChange(tx, organisationId, id)
     await recordAudit(tx, { organisationId, actorUserId: caller.user.id, action: 'job.archived', targetType: 'job', targetId: id, detail: { title: job.title } })
     return true
   })

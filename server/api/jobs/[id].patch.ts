@@ -16,6 +16,7 @@ export default defineEventHandler(async (event) => {
     const [row] = await tx.update(jobs).set({ ...input, updatedAt: new Date() })
       .where(and(eq(jobs.id, id), eq(jobs.organisationId, organisationId)))
       .returning()
+    await recordJobChange(tx, organisationId, id)
     await recordAudit(tx, { organisationId, actorUserId: caller.user.id, action: 'job.updated', targetType: 'job', targetId: id, detail: { fields: Object.keys(input) } })
     return row
   })

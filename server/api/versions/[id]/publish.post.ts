@@ -22,7 +22,10 @@ export default defineEventHandler(async (event) => {
       .returning({ id: breakdownVersions.id, number: breakdownVersions.number })
     await tx.update(breakdownVersions).set({ status: 'published', changeNote: input.changeNote, publishedBy: caller.user.id, publishedAt: now, updatedAt: now })
       .where(and(eq(breakdownVersions.id, id), eq(breakdownVersions.organisationId, organisationId), eq(breakdownVersions.status, 'draft')))
+    // Tablets hear about both: the new version arrives, the old one leaves.
+    await recordChange(tx, organisationId, 'version', id)
     for (const old of retired) {
+      await recordChange(tx, organisationId, 'version', old.id)
       await recordAudit(tx, { organisationId, actorUserId: caller.user.id, action: 'version.retired', targetType: 'breakdown_version', targetId: old.id, detail: { jobId: state.jobId, number: old.number, replacedBy: id } })
     }
     await recordAudit(tx, { organisationId, actorUserId: caller.user.id, action: 'version.published', targetType: 'breakdown_version', targetId: id, detail: { jobId: state.jobId, number: state.number, changeNote: input.changeNote } })

@@ -16,6 +16,7 @@ export default defineEventHandler(async (event) => {
       const state = await versionState(tx, organisationId, id)
       return state ? { kind: 'refused' as const, status: state.status } : { kind: 'missing' as const }
     }
+    await recordChange(tx, organisationId, 'version', id)
     await recordAudit(tx, { organisationId, actorUserId: caller.user.id, action: 'version.retired', targetType: 'breakdown_version', targetId: id, detail: { jobId: retired.jobId, number: retired.number } })
     return { kind: 'retired' as const, version: await findVersion(tx, organisationId, id) }
   })
