@@ -1,3 +1,4 @@
+import { fileURLToPath } from 'node:url'
 import { defineConfig } from 'vitest/config'
 import { defineVitestProject } from '@nuxt/test-utils/config'
 
@@ -7,6 +8,8 @@ export default defineConfig({
   test: {
     projects: [
       {
+        // The same aliases Nuxt gives app code, so app/utils modules can be tested as plain modules.
+        resolve: { alias: { '#shared': fileURLToPath(new URL('./shared', import.meta.url)), '~': fileURLToPath(new URL('./app', import.meta.url)) } },
         test: { name: 'unit', include: ['tests/unit/**/*.test.ts'], environment: 'node' },
       },
       await defineVitestProject({

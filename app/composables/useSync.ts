@@ -1,0 +1,111 @@
+// Sends what the tablet recorded and brings back what changed on the server. Runs when the
+// connection returns (plugins/sync.client.ts) and on demand; one run at a time, state shared.
+import { liveQuery } from 'dexie'
+import type { PullAnswer } from '~/utils/sync-pull-types'
+import { localDb } from '~/utils/localdb'
+import { applyPushAnswer, outbox, planPushes, type PushAnswer, type SyncedEvent, type SyncedLesson } from '~/utils/sync-client'
+
+export interface SyncState {
+  running: boolean
+  /** Pushes sent of pushes planned, for the progress bar. */
+  sent: number
+  planned: number
+  progress: string
+  problem: string | null
+  waiting: { lessons: number, events: number }
+  rejectedLessons: SyncedLesson[]
+  rejectedEvents: SyncedEvent[]
+  lastSyncedAt: number | null
+}
+
+let inFlight: Promise<void> | null = null
+let watching: { organisationId: string, subscription: { unsubscribe: () => void } } | null = null
+
+export function useSync() {
+  const state = useState<SyncState>('sync', () => ({ running: false, sent: 0, planned: 0, progress: '', problem: null, waiting: { lessons: 0, events: 0 }, rejectedLessons: [], rejectedEvents: [], lastSyncedAt: null }))
+  const member = useMemberStore()
+  const online = useOnline()
+
+  /** Keeps the waiting counts live as marks are recorded. */
+  function watchOutbox() {
+    if (import.meta.server || !member.me) return
+    const organisationId = member.me.organisation.id
+    if (watching?.organisationId === organisationId) return
+    watching?.subscription.unsubscribe()
+    const subscription = liveQuery(() => outbox(organisationId)).subscribe({
+      next: (box) => {
+        state.value.waiting = { lessons: box.lessons.length, events: box.events.length }
+        state.value.rejectedLessons = box.rejectedLessons
+        state.value.rejectedEvents = box.rejectedEvents
+      },
+    })
+    watching = { organisationId, subscription }
+    localDb().meta.get(`lastSyncedAt:${organisationId}`).then((row) => {
+      state.value.lastSyncedAt = (row?.value as number | undefined) ?? null
+    })
+  }
+
+  async function run() {
+    const me = member.me
+    if (!me || !runsLessons(me.role)) return
+    if (!online.value) {
+      state.value.problem = 'No connection: everything stays on this tablet and is sent when the connection returns.'
+      return
+    }
+    const organisationId = me.organisation.id
+    const db = localDb()
+    state.value.running = true
+    state.value.problem = null
+    try {
+      const device = await deviceId()
+      const box = await outbox(organisationId)
+      const pushes = planPushes(device, box.lessons, box.events)
+      state.value.planned = pushes.length
+      state.value.sent = 0
+      for (const [i, push] of pushes.entries()) {
+        state.value.progress = `Sending ${i + 1} of ${pushes.length}: ${push.events.length} marks, ${push.lessons.length} lessons`
+        const answer = await $fetch<PushAnswer>('/api/sync', { method: 'POST', body: push })
+        await applyPushAnswer(push, answer)
+        state.value.sent = i + 1
+      }
+      state.value.progress = 'Checking the server for changes…'
+      const cursorKey = `syncCursor:${organisationId}`
+      let since = ((await db.meta.get(cursorKey))?.value as number | undefined) ?? 0
+      let referenceChanged = since === 0
+      for (let page = 0; page < 50; page++) {
+        const pulled = await $fetch<PullAnswer>('/api/sync', { query: { since } })
+        referenceChanged ||= pulled.versions.length + pulled.removedVersions.length + pulled.learners.length + pulled.removedLearners.length > 0
+        await db.transaction('rw', db.lessons, async () => {
+          for (const l of pulled.lessons) if (l.score) await db.lessons.update(l.id, { serverScore: l.score } as Partial<SyncedLesson>)
+        })
+        since = pulled.cursor
+        if (!pulled.more) break
+      }
+      await db.meta.put({ key: cursorKey, value: since })
+      if (referenceChanged) await useOfflineData().refresh()
+      const now = Date.now()
+      await db.meta.put({ key: `lastSyncedAt:${organisationId}`, value: now })
+      state.value.lastSyncedAt = now
+      state.value.progress = ''
+    }
+    catch (error) {
+      const status = (error as { statusCode?: number })?.statusCode
+      state.value.problem = status === 401
+        ? 'Sign in again to send what is waiting; it stays on this tablet meanwhile.'
+        : status ? `The server refused the push (${status}). Everything stays on this tablet; try again.` : 'The connection dropped. Everything stays on this tablet; it is sent when the connection returns.'
+    }
+    finally {
+      state.value.running = false
+    }
+  }
+
+  function syncNow(): Promise<void> {
+    if (import.meta.server) return Promise.resolve()
+    inFlight ??= run().finally(() => {
+      inFlight = null
+    })
+    return inFlight
+  }
+
+  return { state, syncNow, watchOutbox }
+}

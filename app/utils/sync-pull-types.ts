@@ -1,0 +1,12 @@
+// The answer of GET /api/sync?since= (server/utils/sync-pull.ts), as the tablet reads it.
+import type { ServerScore } from './sync-client'
+
+export interface PullAnswer {
+  cursor: number
+  more: boolean
+  versions: Array<{ id: string }>
+  removedVersions: string[]
+  learners: Array<{ id: string }>
+  removedLearners: string[]
+  lessons: Array<{ id: string, score: ServerScore | null }>
+}
