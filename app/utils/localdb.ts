@@ -4,6 +4,8 @@
 import Dexie, { type EntityTable } from 'dexie'
 import type { BreakdownContent } from '#shared/schemas/breakdown'
 import type { LessonEvent } from '#shared/utils/lesson-events'
+// crypto.randomUUID exists only in secure contexts; a tablet on a plain-http site address still needs ids.
+import { newElementId as newId } from './breakdown-words'
 
 export interface OfflineVersion {
   id: string
@@ -98,7 +100,7 @@ export async function deviceId(): Promise<string> {
   return store.transaction('rw', store.meta, async () => {
     const existing = await meta<string>('deviceId')
     if (existing) return existing
-    const id = crypto.randomUUID()
+    const id = newId()
     await store.meta.put({ key: 'deviceId', value: id })
     return id
   })
@@ -116,7 +118,7 @@ export async function appendEvent(input: NewEvent, now = Date.now()): Promise<Lo
   return store.transaction('rw', [store.meta, store.events, store.lessons], async () => {
     const seq = ((await meta<number>('seq')) ?? 0) + 1
     await store.meta.put({ key: 'seq', value: seq })
-    const event: LocalEvent = { ...input, id: crypto.randomUUID(), clientTime: now, deviceId: device, seq, synced: 0 }
+    const event: LocalEvent = { ...input, id: newId(), clientTime: now, deviceId: device, seq, synced: 0 }
     await store.events.add(event)
     await store.lessons.update(input.lessonId, { updatedAt: now })
     return event
