@@ -1,0 +1,119 @@
+// Words for jobs and breakdowns on screen: statuses, hazards, dates, error paths. Pure helpers.
+import { HAZARD_CATEGORY_LABELS, VERSION_STATUS_LABELS, type HazardCategory, type VersionStatus } from '#shared/types/breakdown'
+import type { ApiDate, JobListItem, RouteError } from '~/types/jobs'
+
+/**
+ * A new lineage id. crypto.randomUUID exists only in secure contexts (https, localhost); a
+ * tablet on a plain-http site address still needs ids, so fall back to a v4 UUID (RFC 9562 §5.4)
+ * from getRandomValues, which every browser has.
+ */
+export function newElementId(): string {
+  if (typeof crypto.randomUUID === 'function') return crypto.randomUUID()
+  const b = crypto.getRandomValues(new Uint8Array(16))
+  b[6] = (b[6]! & 0x0F) | 0x40
+  b[8] = (b[8]! & 0x3F) | 0x80
+  const hex = [...b].map(x => x.toString(16).padStart(2, '0')).join('')
+  return `${hex.slice(0, 8)}-${hex.slice(8, 12)}-${hex.slice(12, 16)}-${hex.slice(16, 20)}-${hex.slice(20)}`
+}
+
+const dateFormat = new Intl.DateTimeFormat('en-GB', { dateStyle: 'medium' })
+const dateTimeFormat = new Intl.DateTimeFormat('en-GB', { dateStyle: 'medium', timeStyle: 'short' })
+const timeFormat = new Intl.DateTimeFormat('en-GB', { hour: '2-digit', minute: '2-digit' })
+
+export const formatDate = (d: ApiDate | Date | null | undefined) => (d == null ? '' : dateFormat.format(new Date(d)))
+export const formatDateTime = (d: ApiDate | Date | null | undefined) => (d == null ? '' : dateTimeFormat.format(new Date(d)))
+export const formatTime = (d: ApiDate | Date | null | undefined) => (d == null ? '' : timeFormat.format(new Date(d)))
+
+export type Tone = 'done' | 'attention' | 'problem' | 'plain' | 'action'
+
+/** Tailwind classes for a status badge: colour is the second cue, the word is the first. */
+export const TONE_CLASSES: Record<Tone, string> = {
+  done: 'border-fern-600 bg-fern-50 text-fern-800',
+  attention: 'border-saffron-600 bg-saffron-50 text-saffron-800',
+  problem: 'border-brick-600 bg-brick-50 text-brick-800',
+  action: 'border-harbour-500 bg-harbour-50 text-harbour-800',
+  plain: 'border-paper-edge bg-paper-deep text-ink',
+}
+
+export function jobStatusWords(job: Pick<JobListItem, 'archivedAt' | 'published' | 'draft'>): Array<{ text: string, tone: Tone }> {
+  if (job.archivedAt) return [{ text: 'Archived', tone: 'plain' }]
+  const out: Array<{ text: string, tone: Tone }> = []
+  if (job.published) out.push({ text: `Published v${job.published.number}`, tone: 'done' })
+  if (job.draft) out.push({ text: 'Draft in progress', tone: 'attention' })
+  if (!out.length) out.push({ text: 'No breakdown yet', tone: 'problem' })
+  return out
+}
+
+export const VERSION_TONES: Record<VersionStatus, Tone> = { draft: 'attention', published: 'done', retired: 'plain' }
+
+export function versionWords(v: { status: VersionStatus, number: number }): string {
+  return `${VERSION_STATUS_LABELS[v.status]} v${v.number}`
+}
+
+export function hazardWords(hazards: ReadonlyArray<{ category: HazardCategory }>): string {
+  const names = [...new Set(hazards.map(h => HAZARD_CATEGORY_LABELS[h.category] ?? h.category))]
+  return names.join(', ')
+}
+
+const PATH_WORDS: Record<string, string> = {
+  units: 'unit',
+  steps: 'step',
+  keyPoints: 'key point',
+  hazards: 'hazard',
+  ppe: 'PPE line',
+  toolsAndMaterials: 'tool or material line',
+  workplaceArrangement: 'workplace arrangement',
+  coverageTarget: 'coverage target',
+  workAreaName: 'work area',
+  photoId: 'photo',
+  changeNote: 'change note',
+  formatVersion: 'format version',
+}
+
+/** `breakdown.units.0.steps.2.text` → "breakdown › unit 1 › step 3 › text", for people reading an error. */
+export function readablePath(path: string): string {
+  if (!path || path === '_form') return 'The file'
+  const parts = path.split('.')
+  const words: string[] = []
+  for (let i = 0; i < parts.length; i++) {
+    const part = parts[i]!
+    const next = parts[i + 1]
+    if (PATH_WORDS[part] && next !== undefined && /^\d+$/.test(next)) {
+      words.push(`${PATH_WORDS[part]} ${Number(next) + 1}`)
+      i++
+    }
+    else {
+      words.push(PATH_WORDS[part] ?? part)
+    }
+  }
+  const text = words.join(' › ')
+  return text.charAt(0).toUpperCase() + text.slice(1)
+}
+
+/** Status, message and field errors of a failed $fetch, in one shape. No status means no answer (offline). */
+export function routeError(error: unknown): { status: number | null, message: string, fieldErrors: Record<string, string[]>, data: NonNullable<NonNullable<RouteError['data']>['data']> } {
+  const e = (error ?? {}) as RouteError
+  const status = e.statusCode ?? e.status ?? null
+  const data = e.data?.data ?? {}
+  const message = data.message ?? e.data?.message
+    ?? (status ? 'Something went wrong. Try again.' : 'No connection to the server. Check the network and try again.')
+  return { status, message, fieldErrors: data.fieldErrors ?? {}, data }
+}
+
+/** The whole breakdown as plain text, to copy somewhere safe (after a conflict, for instance). */
+export function breakdownAsText(content: { units: Array<{ title: string, steps: Array<{ text: string, keyPoints: Array<{ kind: string, text: string, reason: string }> }> }> }): string {
+  const lines: string[] = []
+  const many = content.units.length > 1
+  content.units.forEach((unit, u) => {
+    if (many || unit.title) lines.push(`Unit ${u + 1}: ${unit.title}`)
+    unit.steps.forEach((step, s) => {
+      lines.push(`${s + 1}. ${step.text}`)
+      for (const kp of step.keyPoints) {
+        lines.push(`   - ${kp.kind}: ${kp.text}`)
+        if (kp.reason) lines.push(`     reason: ${kp.reason}`)
+      }
+    })
+    lines.push('')
+  })
+  return lines.join('\n').trim()
+}
