@@ -2,6 +2,7 @@ import { cpSync } from 'node:fs'
 import { resolve } from 'node:path'
 import { ensureDevSessionPassword } from './scripts/session-secret.mjs'
 import { PASSWORD_SCRYPT_SETTINGS } from './server/utils/password-settings'
+import { APP_SHELL_PATH, withAppShellEntry, type PrecacheEntry } from './app/utils/app-shell'
 
 // nuxt-auth-utils would otherwise write a generated secret into .env; we keep it in .data/.
 if (process.env.NODE_ENV !== 'production') ensureDevSessionPassword()
@@ -60,6 +61,13 @@ export default defineNuxtConfig({
     // Overridable at run time (NUXT_HASH_SCRYPT_COST …) only so the benchmark can compare settings.
     hash: { scrypt: { ...PASSWORD_SCRYPT_SETTINGS } },
   },
+  routeRules: {
+    // The offline shell is rendered in the browser, so it carries no one's data.
+    [APP_SHELL_PATH]: { ssr: false },
+    // A lesson lives on the tablet (IndexedDB): render it in the browser online as well, the
+    // same way it opens from the shell offline.
+    '/lessons/**': { ssr: false },
+  },
   compatibilityDate: '2026-11-01',
   nitro: {
     experimental: { tasks: true },
@@ -71,6 +79,13 @@ export default defineNuxtConfig({
     },
   },
   typescript: { strict: true },
+  hooks: {
+    // The shell joins the precache list after @vite-pwa/nuxt's own transform has run.
+    'pwa:beforeBuildServiceWorker'(options) {
+      const transforms = options.workbox.manifestTransforms ?? []
+      if (!transforms.includes(addAppShell)) options.workbox.manifestTransforms = [...transforms, addAppShell]
+    },
+  },
   auth: {
     hash: { scrypt: { ...PASSWORD_SCRYPT_SETTINGS } },
   },
@@ -91,14 +106,23 @@ export default defineNuxtConfig({
     },
     pwaAssets: { config: true },
     workbox: {
+      // The shell, scripts, styles, fonts and icons; the shell itself is added by the hook below.
       globPatterns: ['**/*.{js,css,woff,woff2,png,svg,ico}'],
+      // Never the prerender-style fallback for every navigation: online, the server renders.
       navigateFallback: null,
+      // The first install takes charge of the open page at once, so one visit is enough to work
+      // offline; an update still waits for the coach's "Update now" (registerType 'prompt').
+      clientsClaim: true,
+      cleanupOutdatedCaches: true,
       runtimeCaching: [
         {
-          // Navigations: network first, so a signed-in page is always fresh when online.
+          // Navigations go to the network first and are never stored, so no signed-in page lands
+          // in Cache Storage on a shared tablet; when the network fails, the precached shell
+          // answers and the screen reads what it needs from IndexedDB. /api/ is never answered
+          // with the shell.
           urlPattern: ({ request, url }) => request.mode === 'navigate' && !url.pathname.startsWith('/api/'),
-          handler: 'NetworkFirst',
-          options: { cacheName: 'fourfold-pages', networkTimeoutSeconds: 4, expiration: { maxEntries: 30 } },
+          handler: 'NetworkOnly',
+          options: { precacheFallback: { fallbackURL: APP_SHELL_PATH } },
         },
       ],
     },
@@ -106,3 +130,8 @@ export default defineNuxtConfig({
     devOptions: { enabled: false },
   },
 })
+
+async function addAppShell(entries: PrecacheEntry[]) {
+  const manifest = await withAppShellEntry(entries)
+  return { manifest: manifest.map(e => ({ ...e, size: e.size ?? 0 })), warnings: [] }
+}

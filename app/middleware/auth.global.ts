@@ -1,16 +1,33 @@
 // Signed-out visitors reach only the public pages; a page may also name the roles it is for
 // (definePageMeta({ roles: ['admin'] })). The server enforces the same rules on its own.
+// Offline, the tablet's remembered sign-in opens the screens that work offline (Today, lessons);
+// the others say they need a connection. Whenever the server answers, its answer decides.
 import type { Role } from '#shared/types/roles'
+import { APP_SHELL_PATH } from '~/utils/app-shell'
+import { worksOffline } from '~/utils/offline'
 
 const PUBLIC_PAGES = new Set(['/sign-in', '/sign-up', '/forgot-password', '/reset-password', '/accept-invite', '/dev/mail'])
 
 export default defineNuxtRouteMiddleware(async (to) => {
+  // The shell is only the frame the offline screens open in, not a screen of its own.
+  if (to.path === APP_SHELL_PATH) return navigateTo('/', { replace: true })
   if (PUBLIC_PAGES.has(to.path)) return
+  const signIn = () => navigateTo({ path: '/sign-in', query: to.fullPath !== '/' ? { next: to.fullPath } : {} })
   const { loggedIn } = useUserSession()
-  if (!loggedIn.value) return navigateTo({ path: '/sign-in', query: to.fullPath !== '/' ? { next: to.fullPath } : {} })
   const member = useMemberStore()
-  if (!member.me) await member.refresh()
-  if (!member.me) return navigateTo('/sign-in')
+  if (!loggedIn.value) {
+    // On the server the session is the answer. In the browser a missing session may only mean
+    // the session call failed for want of a connection: ask again, and fall back to the tablet.
+    if (import.meta.server) return signIn()
+    if (!member.me || !member.fromDevice) await member.refresh()
+    if (!member.me) return signIn()
+  }
+  else if (!member.me) {
+    await member.refresh()
+    if (!member.me) return navigateTo('/sign-in')
+  }
+  const offline = import.meta.client && (member.fromDevice || !navigator.onLine)
+  if (offline && !worksOffline(to.path)) return navigateTo({ path: '/needs-connection', query: { next: to.fullPath } })
   const roles = to.meta.roles as Role[] | undefined
   if (roles && !roles.includes(member.me.role)) return navigateTo('/')
 })

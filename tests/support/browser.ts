@@ -24,8 +24,9 @@ export interface OpenedContext { context: BrowserContext, page: Page, pageErrors
  * the test server. Each context claims its own client address through X-Forwarded-For (the
  * test server trusts it), so sign-in throttling in one scenario never reaches another.
  * Uncaught page errors are collected so a test can insist there were none.
+ * Service workers are blocked unless `serviceWorkers: 'allow'` (the offline tests need them).
  */
-export async function openContext(browser: Browser, baseURL: string, viewport: Viewport, options: { hasTouch?: boolean } = {}): Promise<OpenedContext> {
+export async function openContext(browser: Browser, baseURL: string, viewport: Viewport, options: { hasTouch?: boolean, serviceWorkers?: 'allow' | 'block' } = {}): Promise<OpenedContext> {
   const context = await browser.newContext({
     baseURL,
     viewport: { width: viewport.width, height: viewport.height },
@@ -33,7 +34,7 @@ export async function openContext(browser: Browser, baseURL: string, viewport: V
     hasTouch: options.hasTouch ?? true,
     locale: 'en-GB',
     timezoneId: 'Europe/London',
-    serviceWorkers: 'block',
+    serviceWorkers: options.serviceWorkers ?? 'block',
     extraHTTPHeaders: { 'x-forwarded-for': uniqueAddress() },
   })
   context.setDefaultTimeout(15_000)
