@@ -26,21 +26,38 @@ export function useSync() {
   const member = useMemberStore()
   const online = useOnline()
 
-  /** Keeps the waiting counts live as marks are recorded. */
+  /** The full outbox: what is waiting and what was refused (read after each run, not on every tap). */
+  async function readOutbox(organisationId: string) {
+    const box = await outbox(organisationId)
+    state.value.waiting = { lessons: box.lessons.length, events: box.events.length }
+    state.value.rejectedLessons = box.rejectedLessons
+    state.value.rejectedEvents = box.rejectedEvents
+  }
+
+  /**
+   * Keeps the waiting counts live as marks are recorded. Counting through the `synced` index is
+   * cheap, so a tap in the runner does not pay for re-reading the whole outbox.
+   */
   function watchOutbox() {
     if (import.meta.server || !member.me) return
     const organisationId = member.me.organisation.id
     if (watching?.organisationId === organisationId) return
     watching?.subscription.unsubscribe()
-    const subscription = liveQuery(() => outbox(organisationId)).subscribe({
-      next: (box) => {
-        state.value.waiting = { lessons: box.lessons.length, events: box.events.length }
-        state.value.rejectedLessons = box.rejectedLessons
-        state.value.rejectedEvents = box.rejectedEvents
+    const db = localDb()
+    const subscription = liveQuery(async () => ({
+      events: await db.events.where('synced').equals(0).count(),
+      lessons: await db.lessons.where('synced').equals(0).count(),
+    })).subscribe({
+      next: (counts) => {
+        state.value.waiting = {
+          events: Math.max(0, counts.events - state.value.rejectedEvents.length),
+          lessons: Math.max(0, counts.lessons - state.value.rejectedLessons.length),
+        }
       },
     })
     watching = { organisationId, subscription }
-    localDb().meta.get(`lastSyncedAt:${organisationId}`).then((row) => {
+    readOutbox(organisationId)
+    db.meta.get(`lastSyncedAt:${organisationId}`).then((row) => {
       state.value.lastSyncedAt = (row?.value as number | undefined) ?? null
     })
   }
@@ -96,6 +113,7 @@ export function useSync() {
     }
     finally {
       state.value.running = false
+      await readOutbox(organisationId).catch(() => undefined)
     }
   }
 
@@ -107,5 +125,5 @@ export function useSync() {
     return inFlight
   }
 
-  return { state, syncNow, watchOutbox }
+  return { state, syncNow, watchOutbox, readOutbox }
 }

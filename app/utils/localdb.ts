@@ -67,6 +67,8 @@ export type FourfoldDb = Dexie & {
 }
 
 let db: FourfoldDb | undefined
+// The device id never changes once made; keeping it saves a transaction on every tap.
+let knownDeviceId: string | undefined
 
 export function localDb(): FourfoldDb {
   if (db) return db
@@ -88,6 +90,7 @@ export function localDb(): FourfoldDb {
 export async function closeLocalDb() {
   db?.close()
   db = undefined
+  knownDeviceId = undefined
 }
 
 async function meta<T>(key: string): Promise<T | undefined> {
@@ -96,14 +99,16 @@ async function meta<T>(key: string): Promise<T | undefined> {
 
 /** This tablet's id, made once and kept. */
 export async function deviceId(): Promise<string> {
+  if (knownDeviceId) return knownDeviceId
   const store = localDb()
-  return store.transaction('rw', store.meta, async () => {
+  knownDeviceId = await store.transaction('rw', store.meta, async () => {
     const existing = await meta<string>('deviceId')
     if (existing) return existing
     const id = newId()
     await store.meta.put({ key: 'deviceId', value: id })
     return id
   })
+  return knownDeviceId
 }
 
 export type NewEvent = Pick<LessonEvent, 'lessonId' | 'pass' | 'elementId' | 'kind' | 'value'>
@@ -117,10 +122,13 @@ export async function appendEvent(input: NewEvent, now = Date.now()): Promise<Lo
   const device = await deviceId()
   return store.transaction('rw', [store.meta, store.events, store.lessons], async () => {
     const seq = ((await meta<number>('seq')) ?? 0) + 1
-    await store.meta.put({ key: 'seq', value: seq })
     const event: LocalEvent = { ...input, id: newId(), clientTime: now, deviceId: device, seq, synced: 0 }
-    await store.events.add(event)
-    await store.lessons.update(input.lessonId, { updatedAt: now })
+    // Issued together inside the one transaction; it commits only when all three are done.
+    await Promise.all([
+      store.meta.put({ key: 'seq', value: seq }),
+      store.events.add(event),
+      store.lessons.update(input.lessonId, { updatedAt: now }),
+    ])
     return event
   })
 }

@@ -2,7 +2,7 @@
 // stay under the server's limits, and what the answer means for each item on the device.
 // Accepted items are marked synced; rejected ones keep their reason and stay until the coach
 // resolves them; the fresh scores the server computed are kept beside the lesson.
-import { SYNC_LIMITS } from '#shared/schemas/sync'
+import { SYNC_LIMITS } from '#shared/utils/sync-limits'
 import { localDb, type LocalEvent, type LocalLesson } from './localdb'
 
 export interface ServerScore { t1: number | null, t2: number | null, t3: number | null, t4: number | null, order: number | null, recall: number | null, readiness: 'ready' | 'another-pass' }

@@ -1,4 +1,4 @@
-import { SYNC_LIMITS } from '../../shared/schemas/sync'
+import { SYNC_LIMITS } from '../../shared/utils/sync-limits'
 
 // How large a request body each route accepts. h3 reads bodies whole with no cap,
 // so the body-limit middleware enforces these before any route reads a byte more.

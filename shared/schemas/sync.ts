@@ -2,14 +2,7 @@
 // and event is checked on its own, so one bad item is rejected with its reason and the rest go in.
 import { z } from 'zod'
 import { EVENT_KINDS, PASS_KEY } from '../utils/lesson-events'
-
-export const SYNC_LIMITS = {
-  lessons: 500,
-  checks: 500,
-  events: 20_000,
-  /** Bytes of one push; a device with more waiting sends it in several pushes. */
-  bodyBytes: 8 * 1024 * 1024,
-} as const
+import { SYNC_LIMITS } from '../utils/sync-limits'
 
 export const syncEnvelopeSchema = z.object({
   deviceId: z.uuid('deviceId must be the tablet\'s UUID.'),

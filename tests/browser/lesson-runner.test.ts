@@ -447,6 +447,24 @@ describe.each(TABLET_VIEWPORTS)('lesson runner at $name', (viewport) => {
     try {
       const lessonId = await runLesson(context, page, { ...viewport, name: `${viewport.name} offline`, width: viewport.width, height: viewport.height }, setup, true)
       await checkRecord(page, lessonId, setup.content, true)
+
+      // Back online (issue 5): Today sends what is waiting, shows it reached the server with the
+      // server's score, and the review page shows the score the server computed.
+      await visit(page, '/')
+      await expect.poll(() => page.getByTestId('sync-waiting').innerText()).toMatch(/Waiting to send: 48 marks/)
+      await context.setOffline(false)
+      await expect.poll(() => page.getByTestId('sync-waiting').innerText(), { timeout: 20_000 }).toBe('Nothing waiting: everything on this tablet is on the server.')
+      await page.screenshot({ path: `/tmp/lesson-runner-${viewport.width}x${viewport.height}-5-synced.png`, fullPage: true })
+      const finished = page.locator(`[data-lesson="${lessonId}"]`)
+      await expect.poll(() => finished.getByTestId('finished-state').innerText(), { timeout: 20_000 }).toContain('On the server: recall score 100, ready to work alone')
+      const events = (await idbRows<LessonEvent & { synced: number }>(page, 'events')).filter(e => e.lessonId === lessonId)
+      expect(events.every(e => e.synced === 1)).toBe(true)
+      await finished.getByRole('link', { name: /Review/ }).click()
+      await page.waitForURL(`**/lessons/review/${lessonId}`)
+      await expect.poll(() => page.getByTestId('recall').innerText()).toBe('100')
+      expect(await page.getByTestId('server-scores').innerText()).toContain('Fourfold\'s suggestion: Ready to work alone')
+      await page.screenshot({ path: `/tmp/lesson-runner-${viewport.width}x${viewport.height}-6-review.png`, fullPage: true })
+      expect(await axeViolations(page), 'axe on the lesson review').toEqual([])
       expect(pageErrors).toEqual([])
     }
     finally {
