@@ -10,28 +10,21 @@
 // correct-password sign-ins per second on each, then the p95 latency of GET /api/me
 // with a session beside a static file under the same load. Traffic goes to 127.0.0.1
 // only. A table is printed for people; the very last line is one JSON object (DESIGN §6).
-import { execFileSync, spawn } from 'node:child_process'
-import { randomBytes } from 'node:crypto'
-import { existsSync, readFileSync, rmSync, statSync } from 'node:fs'
-import { cp, mkdtemp, rm } from 'node:fs/promises'
-import { createServer } from 'node:net'
-import { cpus, loadavg, tmpdir } from 'node:os'
-import { dirname, join, resolve } from 'node:path'
-import { fileURLToPath } from 'node:url'
+import { cpus } from 'node:os'
 import { createClient } from '@libsql/client'
 import autocannon from 'autocannon'
+import { ensureBuild, snapshotBuild } from './lib/build.mjs'
+import { cleanUp, sleep } from './lib/cleanup.mjs'
+import { PASSWORD, nextAddress, signIn, signUp } from './lib/http.mjs'
+import { loadAverage, percentile, processCpuSeconds, round, table } from './lib/report.mjs'
+import { reportServers, startServer } from './lib/server.mjs'
 
-const root = resolve(dirname(fileURLToPath(import.meta.url)), '../..')
-const serverEntry = join(root, '.output/server/index.mjs')
 let snapshotEntry // the private copy of the build the servers run from
 
 const SIGNIN_CONNECTIONS = 4 // libuv's default threadpool size: scrypt runs there
 const GET_CONNECTIONS = 20
 const WARMUP_SECONDS = 2
-const HEALTH_TIMEOUT_MS = 60_000
-const BUILD_TIMEOUT_MS = 15 * 60_000
 const STATIC_PATH = '/fourfold.svg'
-const PASSWORD = 'correct horse battery staple'
 
 // The project's choice is the build's default (server/utils/password-settings.ts);
 // the other server gets @adonisjs/hash's scrypt defaults, which nuxt-auth-utils uses.
@@ -51,172 +44,7 @@ function parseDuration(list) {
   return value
 }
 
-const sleep = ms => new Promise(r => setTimeout(r, ms))
 const log = (...parts) => console.log(...parts)
-
-// ---- clean-up, also on error and Ctrl-C --------------------------------------------
-
-const children = new Set()
-const servers = []
-const tempDirs = new Set()
-
-async function cleanUp() {
-  await Promise.all([...children].map(stopChild))
-  await Promise.all([...tempDirs].map(async (dir) => {
-    await rm(dir, { recursive: true, force: true })
-    tempDirs.delete(dir)
-  }))
-}
-
-async function stopChild(child) {
-  if (child.exitCode === null && child.signalCode === null) {
-    const exited = new Promise(r => child.once('exit', r))
-    child.kill('SIGTERM')
-    await Promise.race([exited, sleep(5000)])
-    if (child.exitCode === null && child.signalCode === null) child.kill('SIGKILL')
-  }
-  children.delete(child)
-}
-
-// Last resort if the process ends some other way: synchronous, best effort.
-process.on('exit', () => {
-  for (const child of children) child.kill('SIGKILL')
-  for (const dir of tempDirs) rmSync(dir, { recursive: true, force: true })
-})
-for (const signal of ['SIGINT', 'SIGTERM']) {
-  process.once(signal, () => {
-    console.error(`\n${signal}: stopping servers`)
-    cleanUp().finally(() => process.exit(130))
-  })
-}
-
-// ---- build ----------------------------------------------------------------------------
-
-async function ensureBuild() {
-  if (existsSync(serverEntry) && !forceBuild) {
-    return `existing .output (built ${statSync(serverEntry).mtime.toISOString()}; pass --build to rebuild)`
-  }
-  const reason = forceBuild ? '--build given' : '.output/server/index.mjs missing'
-  log(`Building (${reason}): npx nuxt build …`)
-  const started = Date.now()
-  // Build output goes to stderr so stdout stays the report.
-  const child = spawn('npx', ['nuxt', 'build'], { cwd: root, stdio: ['ignore', process.stderr, process.stderr] })
-  children.add(child)
-  const timer = setTimeout(() => child.kill('SIGTERM'), BUILD_TIMEOUT_MS)
-  const code = await new Promise(r => child.once('exit', (c, s) => r(c ?? s)))
-  clearTimeout(timer)
-  children.delete(child)
-  if (code !== 0) throw new Error(`npx nuxt build failed (${code})`)
-  if (!existsSync(serverEntry)) throw new Error('build finished but .output/server/index.mjs is missing')
-  return `fresh build (${reason}), ${Math.round((Date.now() - started) / 1000)} s`
-}
-
-// Others may rebuild .output in the shared tree while this runs, which would pull files out
-// from under a running server; so both servers run from a private copy (it is small).
-async function snapshotBuild() {
-  const dir = await mkdtemp(join(tmpdir(), 'fourfold-bench-build-'))
-  tempDirs.add(dir)
-  await cp(join(root, '.output'), join(dir, 'output'), { recursive: true })
-  snapshotEntry = join(dir, 'output/server/index.mjs')
-  if (!existsSync(snapshotEntry) || !existsSync(join(dir, 'output/nitro.json'))) {
-    throw new Error('the copy of .output is incomplete (was it being rebuilt?); run again, or with --build')
-  }
-}
-
-// ---- servers ----------------------------------------------------------------------------
-
-async function freePort() {
-  return new Promise((resolvePort, reject) => {
-    const srv = createServer()
-    srv.once('error', reject)
-    srv.listen(0, '127.0.0.1', () => {
-      const address = srv.address()
-      srv.close(() => resolvePort(address.port))
-    })
-  })
-}
-
-async function startServer(label, extraEnv) {
-  const dir = await mkdtemp(join(tmpdir(), 'fourfold-bench-'))
-  tempDirs.add(dir)
-  const port = await freePort()
-  const url = `http://127.0.0.1:${port}`
-  const databaseUrl = `file:${join(dir, 'fourfold.db')}`
-  let output = ''
-  // Hash settings come only from the build's default or from extraEnv, never from the shell.
-  const inherited = Object.fromEntries(Object.entries(process.env).filter(([key]) => !key.startsWith('NUXT_HASH_')))
-  const child = spawn(process.execPath, [snapshotEntry], {
-    cwd: dir,
-    env: {
-      ...inherited,
-      NODE_ENV: 'production',
-      PORT: String(port),
-      HOST: '127.0.0.1',
-      DATABASE_URL: databaseUrl,
-      MAIL_DIR: join(dir, 'mail'),
-      SMTP_URL: '',
-      NUXT_APP_URL: url,
-      NUXT_SESSION_PASSWORD: randomBytes(32).toString('hex'),
-      NUXT_SESSION_COOKIE_SECURE: 'false',
-      // Each request names its own address through X-Forwarded-For.
-      TRUST_PROXY: '1',
-      ...extraEnv,
-    },
-    stdio: ['ignore', 'pipe', 'pipe'],
-  })
-  children.add(child)
-  // Keep only the tail of the server's output, for error messages.
-  const keep = d => (output = (output + d.toString()).slice(-20_000))
-  child.stdout.on('data', keep)
-  child.stderr.on('data', keep)
-
-  const deadline = Date.now() + HEALTH_TIMEOUT_MS
-  for (let attempt = 0; attempt < 1000; attempt++) {
-    if (child.exitCode !== null) throw new Error(`${label} server exited early (${child.exitCode}):\n${output}`)
-    try {
-      const res = await fetch(`${url}/api/health`, { signal: AbortSignal.timeout(2000) })
-      if (res.ok) {
-        const server = { label, url, databaseUrl, child, output: () => output }
-        servers.push(server)
-        return server
-      }
-    }
-    catch { /* not listening yet */ }
-    if (Date.now() > deadline) break
-    await sleep(150)
-  }
-  throw new Error(`${label} server did not answer /api/health within ${HEALTH_TIMEOUT_MS / 1000} s:\n${output}`)
-}
-
-// Addresses from 198.18.0.0/15 (RFC 2544, for benchmarks); one per request.
-let addressCounter = 0
-function nextAddress() {
-  addressCounter = (addressCounter + 1) % 65_536
-  return `198.18.${addressCounter >> 8}.${addressCounter & 255}`
-}
-
-async function post(server, path, body) {
-  return fetch(`${server.url}${path}`, {
-    method: 'POST',
-    headers: { 'content-type': 'application/json', 'x-forwarded-for': nextAddress() },
-    body: JSON.stringify(body),
-    signal: AbortSignal.timeout(30_000),
-  })
-}
-
-async function signUp(server, email) {
-  const res = await post(server, '/api/auth/signup', { organisation: `Bench ${server.label}`, name: 'Bench Admin', email, password: PASSWORD })
-  if (res.status !== 201) throw new Error(`${server.label}: sign-up answered ${res.status}: ${await res.text()}\n${server.output()}`)
-}
-
-/** Signs in once and returns the session cookie as "name=value". */
-async function signIn(server, email) {
-  const res = await post(server, '/api/auth/login', { email, password: PASSWORD })
-  if (res.status !== 200) throw new Error(`${server.label}: sign-in answered ${res.status}: ${await res.text()}`)
-  const cookie = res.headers.getSetCookie().map(c => c.split(';')[0]).find(c => c.startsWith('fourfold-session='))
-  if (!cookie) throw new Error(`${server.label}: sign-in set no fourfold-session cookie`)
-  return cookie
-}
 
 /** The PHC string the server stored, read straight from its SQLite file. */
 async function storedHash(server, email) {
@@ -248,26 +76,8 @@ async function expectCost(server, email, cost) {
 // from its 'response' event) is kept and p95 is taken exactly by the nearest-rank method on
 // the sorted list. Warm-up responses go to a separate tracker and are not counted. The list
 // is bounded by the run's duration. The value is checked against autocannon's p90 and
-// p97.5 (whole milliseconds, from its HDR histogram) as a sanity test.
-function percentile(sorted, p) {
-  if (!sorted.length) return Number.NaN
-  return sorted[Math.min(sorted.length, Math.max(1, Math.ceil((p / 100) * sorted.length))) - 1]
-}
-
-// CPU time the server process (all its threads) used, from /proc (Linux); null elsewhere.
-let clockTicks
-function serverCpuSeconds(server) {
-  try {
-    clockTicks ??= Number(execFileSync('getconf', ['CLK_TCK'], { encoding: 'utf8' }).trim()) || 100
-    // Fields after the ")" that closes the command name: utime and stime are the 12th and 13th.
-    const stat = readFileSync(`/proc/${server.child.pid}/stat`, 'utf8')
-    const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' ')
-    return (Number(fields[11]) + Number(fields[12])) / clockTicks
-  }
-  catch {
-    return null
-  }
-}
+// p97.5 (whole milliseconds, from its HDR histogram) as a sanity test (percentile() in lib/report.mjs).
+const serverCpuSeconds = server => processCpuSeconds(server.child.pid)
 
 async function load(name, server, options) {
   const latencies = []
@@ -346,29 +156,23 @@ async function settle(previous) {
 
 // ---- report --------------------------------------------------------------------------------
 
-function table(rows) {
+function loadTable(rows) {
   const head = ['measurement', 'conns', 'seconds', 'requests', 'per s', 'p50 ms', 'p95 ms', 'p99 ms', 'max ms', 'server CPUs']
-  const body = rows.map(r => [r.name, r.connections, r.seconds.toFixed(1), r.count, r.perSecond.toFixed(1), r.p50.toFixed(2), r.p95.toFixed(2), r.p99.toFixed(2), r.max.toFixed(2), r.serverCpus === null ? 'n/a' : r.serverCpus.toFixed(2)].map(String))
-  const widths = head.map((h, i) => Math.max(h.length, ...body.map(b => b[i].length)))
-  const line = cells => cells.map((c, i) => (i === 0 ? c.padEnd(widths[i]) : c.padStart(widths[i]))).join('  ')
-  return [line(head), widths.map(w => '-'.repeat(w)).join('  '), ...body.map(line)].join('\n')
+  return table(head, rows.map(r => [r.name, r.connections, r.seconds.toFixed(1), r.count, r.perSecond.toFixed(1), r.p50.toFixed(2), r.p95.toFixed(2), r.p99.toFixed(2), r.max.toFixed(2), r.serverCpus === null ? 'n/a' : r.serverCpus.toFixed(2)]))
 }
-
-const loadAverage = () => loadavg().map(n => n.toFixed(2)).join(' ')
-const round = (n, digits) => Number(n.toFixed(digits))
 
 // ---- main --------------------------------------------------------------------------------
 
 async function main() {
-  const build = await ensureBuild()
-  await snapshotBuild()
+  const build = await ensureBuild({ forceBuild, log })
+  snapshotEntry = await snapshotBuild()
   log(`Build: ${build}; servers run from a private copy`)
   log(`Machine: ${cpus().length} CPUs, Node ${process.version}, UV_THREADPOOL_SIZE ${process.env.UV_THREADPOOL_SIZE ?? '4 (default)'}; load average ${loadAverage()}`)
   log(`${duration} s per measurement; GETs after a ${WARMUP_SECONDS} s warm-up, sign-ins after ${2 * SIGNIN_CONNECTIONS} warm-up sign-ins`)
 
   const [chosen, fallback] = await Promise.all([
-    startServer('project N=2^17', {}),
-    startServer('nuxt-auth-utils default N=2^14', DEFAULT_HASH_ENV),
+    startServer(snapshotEntry, 'project N=2^17', {}),
+    startServer(snapshotEntry, 'nuxt-auth-utils default N=2^14', DEFAULT_HASH_ENV),
   ])
   const email = 'bench@fourfold.example'
   await Promise.all([signUp(chosen, email), signUp(fallback, email)])
@@ -413,7 +217,7 @@ async function main() {
     signin_ratio: round(signinDefault.perSecond / signinChosen.perSecond, 2),
   }
   log('')
-  log(table(rows))
+  log(loadTable(rows))
   log('')
   log(`Sign-ins per second: ${figures.signin_per_s} with the project's N=2^17 vs ${figures.signin_default_per_s} with the default N=2^14 (${figures.signin_ratio}× as many with the default).`)
   log(`p95 under ${GET_CONNECTIONS} connections: GET /api/me ${figures.get_p95_ms} ms vs static ${STATIC_PATH} ${figures.static_p95_ms} ms.`)
@@ -427,10 +231,7 @@ try {
 }
 catch (error) {
   console.error(`\nauth benchmark failed: ${error?.stack ?? error}`)
-  for (const server of servers) {
-    const state = server.child.exitCode === null && server.child.signalCode === null ? 'running' : `exited (${server.child.exitCode ?? server.child.signalCode})`
-    console.error(`\n--- ${server.label} server, ${state}; end of its output:\n${server.output().slice(-3000)}`)
-  }
+  reportServers()
   await cleanUp()
   process.exitCode = 1
 }
