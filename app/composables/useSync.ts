@@ -24,7 +24,6 @@ let watching: { organisationId: string, subscription: { unsubscribe: () => void 
 export function useSync() {
   const state = useState<SyncState>('sync', () => ({ running: false, sent: 0, planned: 0, progress: '', problem: null, waiting: { lessons: 0, events: 0 }, rejectedLessons: [], rejectedEvents: [], lastSyncedAt: null }))
   const member = useMemberStore()
-  const online = useOnline()
 
   /** The full outbox: what is waiting and what was refused (read after each run, not on every tap). */
   async function readOutbox(organisationId: string) {
@@ -65,7 +64,7 @@ export function useSync() {
   async function run() {
     const me = member.me
     if (!me || !runsLessons(me.role)) return
-    if (!online.value) {
+    if (!navigator.onLine) {
       state.value.problem = 'No connection: everything stays on this tablet and is sent when the connection returns.'
       return
     }

@@ -1,14 +1,14 @@
 // Sync when the connection returns, and once at start when signed in.
 export default defineNuxtPlugin(() => {
-  const online = useOnline()
   const member = useMemberStore()
   const { syncNow, watchOutbox } = useSync()
   watch(() => member.me?.organisation.id, (id) => {
     if (!id) return
     watchOutbox()
-    if (online.value) syncNow()
+    if (navigator.onLine) syncNow()
   }, { immediate: true })
-  watch(online, (isOnline) => {
-    if (isOnline && member.me) syncNow()
+  // The browser's own event: it fires when the tablet is back on a network.
+  window.addEventListener('online', () => {
+    if (member.me) syncNow()
   })
 })
