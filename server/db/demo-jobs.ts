@@ -20,6 +20,31 @@ export interface DemoJob {
   versions: Array<{ changeNote: string, units: DemoUnit[] }>
 }
 
+// Slicer v1; v2 rewords the lockout step and adds the tension check after two loose sets.
+const SLICER_V1_STEPS: S[] = [
+  ['Stop and lock out slicer', [
+    ['safety', 'Isolator off, your own padlock and tag on it', 'Nobody can start the drive while your hands are inside'],
+    ['safety', 'Wait until the blade frame stands still', 'Blades coast after the stop button'],
+  ]],
+  ['Open the blade guard', [
+    ['knack', 'Lift both latches together', 'One latch alone jams the guard'],
+  ]],
+  ['Remove the worn blade set', [
+    ['safety', 'Gloves on, hold the set only by its frame bars', 'Blade edges cut through ordinary gloves'],
+    ['quality', 'Put it straight into the empty blade case', 'A loose set gets damaged and is a hazard to others'],
+  ]],
+  ['Fit the new blade set', [
+    ['quality', 'Seat both frame pins fully', 'A half-seated set tears the loaves'],
+    ['knack', 'Rock the frame gently onto the pins', 'Forcing it bends the blades'],
+  ]],
+  ['Close guard, remove lock', [
+    ['safety', 'Check the guard latch clicks before removing your lock', 'The slicer will not run safely with the guard open'],
+  ]],
+  ['Slice one test loaf', [
+    ['quality', 'Slices even and crumb not torn', 'Shows the set is seated and sharp'],
+  ]],
+]
+
 export const DEMO_JOBS: DemoJob[] = [
   {
     title: 'Change the slicer blade set',
@@ -34,64 +59,18 @@ export const DEMO_JOBS: DemoJob[] = [
     workplaceArrangement: 'Slicer 2 emptied of bread, infeed belt clear, blade trolley parked on the left of the machine.',
     coverageTarget: 3,
     versions: [
-      {
-        changeNote: 'First version.',
-        units: [{
-          title: '',
-          steps: [
-            ['Stop and lock out slicer', [
-              ['safety', 'Isolator off, your own padlock and tag on it', 'Nobody can start the drive while your hands are inside'],
-              ['safety', 'Wait until the blade frame stands still', 'Blades coast after the stop button'],
-            ]],
-            ['Open the blade guard', [
-              ['knack', 'Lift both latches together', 'One latch alone jams the guard'],
-            ]],
-            ['Remove the worn blade set', [
-              ['safety', 'Gloves on, hold the set only by its frame bars', 'Blade edges cut through ordinary gloves'],
-              ['quality', 'Put it straight into the empty blade case', 'A loose set gets damaged and is a hazard to others'],
-            ]],
-            ['Fit the new blade set', [
-              ['quality', 'Seat both frame pins fully', 'A half-seated set tears the loaves'],
-              ['knack', 'Rock the frame gently onto the pins', 'Forcing it bends the blades'],
-            ]],
-            ['Close guard, remove lock', [
-              ['safety', 'Check the guard latch clicks before removing your lock', 'The slicer will not run safely with the guard open'],
-            ]],
-            ['Slice one test loaf', [
-              ['quality', 'Slices even and crumb not torn', 'Shows the set is seated and sharp'],
-            ]],
-          ],
-        }],
-      },
+      { changeNote: 'First version.', units: [{ title: '', steps: SLICER_V1_STEPS }] },
       {
         changeNote: 'Added the hex-key tension check after two loose sets on night shift; reworded the lockout step.',
         units: [{
           title: '',
           steps: [
-            ['Stop slicer and lock out', [
-              ['safety', 'Isolator off, your own padlock and tag on it', 'Nobody can start the drive while your hands are inside'],
-              ['safety', 'Wait until the blade frame stands still', 'Blades coast after the stop button'],
-            ]],
-            ['Open the blade guard', [
-              ['knack', 'Lift both latches together', 'One latch alone jams the guard'],
-            ]],
-            ['Remove the worn blade set', [
-              ['safety', 'Gloves on, hold the set only by its frame bars', 'Blade edges cut through ordinary gloves'],
-              ['quality', 'Put it straight into the empty blade case', 'A loose set gets damaged and is a hazard to others'],
-            ]],
-            ['Fit the new blade set', [
-              ['quality', 'Seat both frame pins fully', 'A half-seated set tears the loaves'],
-              ['knack', 'Rock the frame gently onto the pins', 'Forcing it bends the blades'],
-            ]],
+            ['Stop slicer and lock out', SLICER_V1_STEPS[0]![1]],
+            ...SLICER_V1_STEPS.slice(1, 4),
             ['Tighten the tension bolts', [
               ['quality', 'Quarter turn past finger tight with the hex key', 'Loose blades wander; too tight snaps them'],
             ]],
-            ['Close guard, remove lock', [
-              ['safety', 'Check the guard latch clicks before removing your lock', 'The slicer will not run safely with the guard open'],
-            ]],
-            ['Slice one test loaf', [
-              ['quality', 'Slices even and crumb not torn', 'Shows the set is seated and sharp'],
-            ]],
+            ...SLICER_V1_STEPS.slice(4),
           ],
         }],
       },

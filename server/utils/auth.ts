@@ -13,7 +13,7 @@ export interface Caller {
 }
 
 function unauthorised(message = 'Sign in to continue.') {
-  return createError({ statusCode: 401, statusMessage: 'Unauthorized', message, data: { message } })
+  return problem(401, message)
 }
 
 export async function requireSignedIn(event: H3Event): Promise<Caller> {
@@ -43,10 +43,14 @@ export async function requireSignedIn(event: H3Event): Promise<Caller> {
 export async function requireRole(event: H3Event, ...roles: Role[]): Promise<Caller> {
   const caller = await requireSignedIn(event)
   if (roles.length && !roles.includes(caller.membership.role)) {
-    const message = `This needs the ${roles.join(' or ')} role; you are signed in as ${caller.membership.role}.`
-    throw createError({ statusCode: 403, statusMessage: 'Forbidden', message, data: { message } })
+    throw forbidden(`This needs the ${roles.join(' or ')} role; you are signed in as ${caller.membership.role}.`)
   }
   return caller
+}
+
+/** Learners may read what is about them only; every other role reads the whole organisation. */
+export function assertMayReadLearner(caller: Caller, learnerUserId: string | null, what: string) {
+  if (caller.membership.role === 'learner' && learnerUserId !== caller.user.id) throw forbidden(`Learners can see only their own ${what}.`)
 }
 
 /** Starts a fresh sealed session (replace, never merge: no state carries over from before sign-in). */

@@ -58,3 +58,9 @@ export function useDb(): Promise<Db> {
   })
   return ready
 }
+
+/** True when a write broke a UNIQUE index (two people taking the same name or address at once). */
+export function isUniqueViolation(error: unknown): boolean {
+  const text = `${(error as Error)?.message ?? ''} ${String((error as { cause?: unknown })?.cause ?? '')}`
+  return text.includes('UNIQUE constraint failed')
+}

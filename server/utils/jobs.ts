@@ -20,17 +20,6 @@ export function jobView(job: Job) {
   return fields
 }
 
-/** A work area id from a form must name one of the caller's organisation's work areas (422 on the field otherwise). */
-export async function assertOwnWorkArea(db: Reader, organisationId: string, workAreaId: string | null | undefined) {
-  if (!workAreaId) return
-  const [area] = await db.select({ id: workAreas.id }).from(workAreas)
-    .where(and(eq(workAreas.id, workAreaId), eq(workAreas.organisationId, organisationId))).limit(1)
-  if (!area) {
-    const message = 'Choose a work area from the list; that one is not in your organisation.'
-    throw createError({ statusCode: 422, statusMessage: 'Unprocessable Entity', message, data: { message: 'Some fields need attention.', fieldErrors: { workAreaId: [message] } } })
-  }
-}
-
 /** A job's versions, newest first. Learners never see drafts. */
 export async function jobVersions(db: Reader, organisationId: string, jobId: string, options: { drafts: boolean }) {
   return db.select({

@@ -13,5 +13,5 @@ export function lastAdminError(action: 'demote' | 'remove') {
   const message = action === 'demote'
     ? 'This is the organisation\'s last admin. Make someone else an admin first.'
     : 'The last admin cannot be removed. Make someone else an admin first.'
-  return createError({ statusCode: 409, message, data: { message } })
+  return conflict(message)
 }

@@ -1,6 +1,6 @@
 // Failed sign-ins counted per account and per address, in the database so
 // that every app instance enforces the same limit.
-import { and, eq, gt, inArray, lt, or } from 'drizzle-orm'
+import { and, eq, gt, lt, or } from 'drizzle-orm'
 import { signInFailures } from '../db/schema'
 import { SIGN_IN_WINDOW_MS, throttleDecision } from '../../shared/utils/throttle'
 
@@ -37,5 +37,5 @@ export async function recordSignInFailure(keys: ThrottleKeys, now = Date.now()) 
 
 export async function clearAccountFailures(account: string) {
   const db = await useDb()
-  await serialiseWrite(() => db.delete(signInFailures).where(and(eq(signInFailures.scope, 'account'), inArray(signInFailures.key, [account]))))
+  await serialiseWrite(() => db.delete(signInFailures).where(and(eq(signInFailures.scope, 'account'), eq(signInFailures.key, account))))
 }

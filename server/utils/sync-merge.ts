@@ -234,11 +234,7 @@ async function writeMerge(tx: Transaction, organisationId: string, deviceId: str
     const storedAck = row.acknowledgement ? JSON.parse(row.acknowledgement as string) as { at: number, name: string } : null
     const ackWins = ackKey(l.acknowledgement) > ackKey(storedAck)
     if (newer(lessonClock({ signedOffAt: l.signedOffAt, updatedAt: l.updatedAt, deviceId }, mergeableFields(l)), lessonClock(stored, storedFields(row)))) {
-      if (stored.signedOffAt && !l.signedOffAt) {
-        // Cannot happen by the clock above; kept as the rule in words.
-        rejected.push({ id: l.id, reason: 'This lesson was signed off; only the learner\'s acknowledgement can still be added.' })
-        continue
-      }
+      // A signed-off copy always wins the clock, so an open copy never gets here over a signed-off one.
       const ack = ackWins ? l.acknowledgement : storedAck
       statements.push({
         sql: 'update lessons set coach_user_id=?, place=?, started_at=?, prepare=?, helper=?, decision=?, acknowledgement=?, signed_off_at=?, stage_seconds=?, client_updated_at=?, updated_by_device=? where id=? and organisation_id=?',

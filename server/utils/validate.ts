@@ -47,15 +47,26 @@ export function queryValid<S extends z.ZodType>(event: H3Event, schema: S): z.ou
   return result.data
 }
 
+/**
+ * An error a person reads: the message travels in `data.message` (and, with a field, in
+ * `data.fieldErrors[field]`) so the forms can show it above the button or beside the field.
+ */
+export function problem(statusCode: number, message: string, field?: string) {
+  return createError({ statusCode, message, data: { message, ...(field ? { fieldErrors: { [field]: [message] } } : {}) } })
+}
+
 export function notFound(what = 'That item') {
-  const message = `${what} was not found in your organisation.`
-  return createError({ statusCode: 404, statusMessage: 'Not Found', message, data: { message } })
+  return problem(404, `${what} was not found in your organisation.`)
 }
 
 export function conflict(message: string) {
-  return createError({ statusCode: 409, statusMessage: 'Conflict', message, data: { message } })
+  return problem(409, message)
+}
+
+export function forbidden(message: string) {
+  return problem(403, message)
 }
 
 export function badRequest(message: string, statusCode = 400) {
-  return createError({ statusCode, message, data: { message } })
+  return problem(statusCode, message)
 }

@@ -38,7 +38,7 @@ describe('roster', () => {
     const bArea = (await b.client.post('/api/work-areas', { name: 'B area' })).body
     const res = await a.client.post('/api/learners', { name: 'Someone', workAreaId: bArea.id })
     expect(res.status).toBe(422)
-    expect(res.body.data.fieldErrors.workAreaId).toEqual(['Choose a work area from the list.'])
+    expect(res.body.data.fieldErrors.workAreaId).toEqual(['Choose a work area from the list; that one is not in your organisation.'])
   })
 
   it('links an invited learner\'s new account to their roster entry; they may read only their own', async () => {

@@ -12,7 +12,7 @@ export default defineEventHandler(async (event) => {
     setResponseHeader(event, 'Retry-After', throttle.retryAfterSeconds)
     const minutes = Math.ceil(throttle.retryAfterSeconds / 60)
     const message = `Too many failed sign-ins. Try again in ${minutes} minute${minutes === 1 ? '' : 's'}, or reset your password.`
-    throw createError({ statusCode: 429, statusMessage: 'Too Many Requests', message, data: { message } })
+    throw problem(429, message)
   }
 
   const db = await useDb()
@@ -25,8 +25,7 @@ export default defineEventHandler(async (event) => {
   const passwordOk = await verifyPasswordOrDummy(row?.passwordHash, input.password)
   if (!row || !passwordOk || !row.organisationId) {
     await recordSignInFailure(keys)
-    const message = 'That e-mail address and password do not match an account.'
-    throw createError({ statusCode: 401, statusMessage: 'Unauthorized', message, data: { message } })
+    throw problem(401, 'That e-mail address and password do not match an account.')
   }
 
   await clearAccountFailures(keys.account)

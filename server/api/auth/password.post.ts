@@ -9,8 +9,7 @@ export default defineEventHandler(async (event) => {
   const db = await useDb()
   const [row] = await db.select({ passwordHash: users.passwordHash }).from(users).where(eq(users.id, caller.user.id)).limit(1)
   if (!row || !(await verifyPassword(row.passwordHash, input.currentPassword))) {
-    const message = 'Your current password is not right.'
-    throw createError({ statusCode: 422, message, data: { message, fieldErrors: { currentPassword: [message] } } })
+    throw problem(422, 'Your current password is not right.', 'currentPassword')
   }
   const passwordHash = await hashPassword(input.newPassword)
   const now = new Date()

@@ -7,13 +7,16 @@ import { tokenState } from '../../../shared/utils/tokens'
 export default defineEventHandler(async (event) => {
   const input = await readValid(event, resetSchema)
   const db = await useDb()
-  const [reset] = await db.select().from(passwordResets).where(eq(passwordResets.tokenHash, hashToken(input.token))).limit(1)
+  // The account's address comes with the token: the throttle counts failures by address.
+  const [reset] = await db.select({ id: passwordResets.id, userId: passwordResets.userId, expiresAt: passwordResets.expiresAt, usedAt: passwordResets.usedAt, email: users.email })
+    .from(passwordResets).innerJoin(users, eq(users.id, passwordResets.userId))
+    .where(eq(passwordResets.tokenHash, hashToken(input.token))).limit(1)
   const state = reset ? tokenState(reset, Date.now()) : 'missing'
   if (!reset || state !== 'usable') {
     const message = state === 'used'
       ? 'This reset link has been used already. Ask for a new one.'
       : state === 'expired' ? 'This reset link has expired. Ask for a new one.' : 'This reset link is not valid. Ask for a new one.'
-    throw createError({ statusCode: 400, message, data: { message, fieldErrors: { token: [message] } } })
+    throw problem(400, message, 'token')
   }
   const passwordHash = await hashPassword(input.password)
   const now = new Date()
@@ -26,16 +29,7 @@ export default defineEventHandler(async (event) => {
     if (membership) await recordAudit(tx, { organisationId: membership.organisationId, actorUserId: reset.userId, action: 'password.reset', targetType: 'user', targetId: reset.userId })
     return true
   })
-  if (!used) {
-    const message = 'This reset link has been used already. Ask for a new one.'
-    throw createError({ statusCode: 400, message, data: { message, fieldErrors: { token: [message] } } })
-  }
-  await clearAccountFailuresForUser(reset.userId)
+  if (!used) throw problem(400, 'This reset link has been used already. Ask for a new one.', 'token')
+  await clearAccountFailures(reset.email)
   return { message: 'Your password has been changed. Sign in with the new one.' }
 })
-
-async function clearAccountFailuresForUser(userId: string) {
-  const db = await useDb()
-  const [user] = await db.select({ email: users.email }).from(users).where(eq(users.id, userId)).limit(1)
-  if (user) await clearAccountFailures(user.email)
-}

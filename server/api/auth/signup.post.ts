@@ -24,7 +24,7 @@ export default defineEventHandler(async (event) => {
   }
   catch (error) {
     // Two sign-ups with one address at the same moment: the unique index decides.
-    if (String((error as Error)?.message ?? error).includes('UNIQUE')) throw emailTaken()
+    if (isUniqueViolation(error)) throw emailTaken()
     throw error
   }
   await startSession(event, user, organisationId)
@@ -33,6 +33,5 @@ export default defineEventHandler(async (event) => {
 })
 
 function emailTaken() {
-  const message = 'An account with this e-mail address already exists. Sign in, or reset its password.'
-  return createError({ statusCode: 409, message, data: { message, fieldErrors: { email: [message] } } })
+  return problem(409, 'An account with this e-mail address already exists. Sign in, or reset its password.', 'email')
 }

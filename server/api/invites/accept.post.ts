@@ -52,5 +52,5 @@ function inviteProblem(state: string) {
     revoked: 'This invitation was withdrawn. Ask your admin to send a new one.',
     taken: 'An account with this e-mail address exists already. Sign in instead.',
   }[state] ?? 'This invitation link is not valid. Ask your admin to send a new one.'
-  return createError({ statusCode: state === 'taken' ? 409 : 400, message, data: { message, fieldErrors: { token: [message] } } })
+  return problem(state === 'taken' ? 409 : 400, message, 'token')
 }

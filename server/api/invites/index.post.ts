@@ -11,14 +11,11 @@ export default defineEventHandler(async (event) => {
   const caller = await requireRole(event, 'admin')
   const db = await useDb()
   const [existing] = await db.select({ id: users.id }).from(users).where(eq(users.email, input.email)).limit(1)
-  if (existing) {
-    const message = 'This address already has a Fourfold account, and an account belongs to one organisation.'
-    throw createError({ statusCode: 409, message, data: { message, fieldErrors: { email: [message] } } })
-  }
+  if (existing) throw problem(409, 'This address already has a Fourfold account, and an account belongs to one organisation.', 'email')
   if (input.learnerId) {
     const [learner] = await db.select({ userId: learners.userId }).from(learners).where(and(eq(learners.id, input.learnerId), eq(learners.organisationId, caller.organisation.id))).limit(1)
     const message = !learner ? 'Choose a learner from the roster.' : learner.userId ? 'This learner has an account already.' : input.role !== 'learner' ? 'A roster entry can only be invited as a learner.' : ''
-    if (message) throw createError({ statusCode: 422, message, data: { message, fieldErrors: { learnerId: [message] } } })
+    if (message) throw problem(422, message, 'learnerId')
   }
   const { token, hash } = newSecretToken()
   const now = Date.now()

@@ -22,10 +22,6 @@ export default defineEventHandler(async (event) => {
     .where(and(eq(learners.id, id), eq(learners.organisationId, caller.organisation.id)))
     .limit(1)
   if (!row) throw notFound('That learner')
-  const isSelf = row.userId === caller.user.id
-  if (caller.membership.role === 'learner' && !isSelf) {
-    const message = 'Learners can see only their own record.'
-    throw createError({ statusCode: 403, message, data: { message } })
-  }
+  assertMayReadLearner(caller, row.userId, 'record')
   return row
 })

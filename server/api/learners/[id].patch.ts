@@ -8,7 +8,7 @@ export default defineEventHandler(async (event) => {
   const { id } = await paramsValid(event, idParamsSchema)
   const { archived, ...fields } = await readValid(event, updateLearnerSchema)
   const caller = await requireRole(event, 'admin', 'coach')
-  await assertWorkAreaInOrganisation(caller.organisation.id, fields.workAreaId)
+  await assertOwnWorkArea(await useDb(), caller.organisation.id, fields.workAreaId)
   const now = new Date()
   const changes = { ...fields, updatedAt: now, ...(archived === undefined ? {} : { archivedAt: archived ? now : null }) }
   const [row] = await writeTransaction(async (tx) => {

@@ -6,7 +6,7 @@ import { createLearnerSchema } from '../../../shared/schemas/learners'
 export default defineEventHandler(async (event) => {
   const input = await readValid(event, createLearnerSchema)
   const caller = await requireRole(event, 'admin', 'coach')
-  await assertWorkAreaInOrganisation(caller.organisation.id, input.workAreaId)
+  await assertOwnWorkArea(await useDb(), caller.organisation.id, input.workAreaId)
   const learner = { id: randomUUID(), organisationId: caller.organisation.id, ...input }
   await writeTransaction(async (tx) => {
     await tx.insert(learners).values(learner)

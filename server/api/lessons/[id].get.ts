@@ -24,10 +24,7 @@ export default defineEventHandler(async (event) => {
     .where(and(eq(lessons.id, id), eq(lessons.organisationId, org)))
     .limit(1)
   if (!row) throw notFound('That lesson')
-  if (caller.membership.role === 'learner' && row.learnerUserId !== caller.user.id) {
-    const message = 'Learners can see only their own lessons.'
-    throw createError({ statusCode: 403, message, data: { message } })
-  }
+  assertMayReadLearner(caller, row.learnerUserId, 'lessons')
   const [score] = await db.select().from(lessonScores).where(and(eq(lessonScores.lessonId, id), eq(lessonScores.organisationId, org)))
   const marks = await db.select({
     id: lessonEvents.id, pass: lessonEvents.pass, elementId: lessonEvents.elementId, kind: lessonEvents.kind, value: lessonEvents.value,

@@ -10,10 +10,7 @@ export default defineEventHandler(async (event) => {
   const org = caller.organisation.id
   const [learner] = await db.select({ id: learners.id, userId: learners.userId }).from(learners).where(and(eq(learners.id, id), eq(learners.organisationId, org))).limit(1)
   if (!learner) throw notFound('That learner')
-  if (caller.membership.role === 'learner' && learner.userId !== caller.user.id) {
-    const message = 'Learners can see only their own scores.'
-    throw createError({ statusCode: 403, message, data: { message } })
-  }
+  assertMayReadLearner(caller, learner.userId, 'scores')
   return db.select({
     lessonId: lessons.id, jobId: lessons.jobId, jobTitle: jobs.title, versionNumber: breakdownVersions.number, startedAt: lessons.startedAt, signedOffAt: lessons.signedOffAt,
     decision: lessons.decision, recall: lessonScores.recall, order: lessonScores.orderScore, readiness: lessonScores.readiness,
