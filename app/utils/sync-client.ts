@@ -31,9 +31,9 @@ export function lessonForPush(l: LocalLesson) {
   }
 }
 
+/** The event as the server takes it: without what only this device keeps about it. */
 function eventForPush(e: LocalEvent): Omit<LocalEvent, 'synced'> {
-  const { synced: _s, ...rest } = e as SyncedEvent
-  const { rejection: _r, ...event } = rest as SyncedEvent
+  const { synced: _synced, rejection: _rejection, ...event } = e as SyncedEvent
   return event
 }
 
