@@ -57,6 +57,57 @@ export interface LocalEvent extends LessonEvent { synced: 0 | 1 }
 
 export interface MetaRow { key: string, value: unknown }
 
+/** A spot check recorded on this tablet (issue 6); its marks are LocalCheckEvent rows. */
+export interface LocalCheck {
+  id: string
+  organisationId: string
+  coachUserId: string
+  learnerId: string
+  jobId: string
+  versionId: string
+  lessonId: string | null
+  startedAt: number
+  updatedAt: number
+  /** Element ids chosen to check; a key point id with ":reason" means "tells the reason". */
+  elements: string[]
+  note: string
+  finishedAt: number | null
+  /** The taper step the check was due at (index into SPOT_CHECK_INTERVAL_DAYS). */
+  intervalIndex: number
+  synced: 0 | 1
+}
+
+/** A mark of a spot check; same device sequence as lesson events. */
+export interface LocalCheckEvent {
+  id: string
+  checkId: string
+  elementId: string | null
+  kind: 'mark' | 'undo'
+  value: string | null
+  clientTime: number
+  deviceId: string
+  seq: number
+  synced: 0 | 1
+}
+
+/** What the server says is due, kept for Today and the spot check runner offline. */
+export interface OfflineDueCheck {
+  key: string
+  organisationId: string
+  learnerId: string
+  jobId: string
+  versionId: string
+  lessonId: string | null
+  dueAt: number
+  intervalIndex: number
+}
+
+/** The training timetable as last pulled, for Today offline. */
+export interface OfflinePlanItem { id: string, organisationId: string, learnerId: string, jobId: string, targetDate: string | null, reason: string }
+
+/** A learner's own study cards: a published breakdown they are trained on (read-only). */
+export interface OfflineStudyCard { versionId: string, userId: string, data: unknown }
+
 export type FourfoldDb = Dexie & {
   meta: EntityTable<MetaRow, 'key'>
   versions: EntityTable<OfflineVersion, 'id'>
@@ -64,6 +115,11 @@ export type FourfoldDb = Dexie & {
   photos: EntityTable<OfflinePhoto, 'key'>
   lessons: EntityTable<LocalLesson, 'id'>
   events: EntityTable<LocalEvent, 'id'>
+  checks: EntityTable<LocalCheck, 'id'>
+  checkEvents: EntityTable<LocalCheckEvent, 'id'>
+  dueChecks: EntityTable<OfflineDueCheck, 'key'>
+  planItems: EntityTable<OfflinePlanItem, 'id'>
+  studyCards: EntityTable<OfflineStudyCard, 'versionId'>
 }
 
 let db: FourfoldDb | undefined
@@ -81,6 +137,14 @@ export function localDb(): FourfoldDb {
     photos: 'key, id',
     lessons: 'id, organisationId, learnerId, jobId, updatedAt, synced',
     events: 'id, lessonId, [lessonId+seq], [deviceId+seq], synced',
+  })
+  // Issue 6: spot checks and their marks, what is due, the plan, a learner's study cards.
+  instance.version(2).stores({
+    checks: 'id, organisationId, learnerId, jobId, updatedAt, synced',
+    checkEvents: 'id, checkId, synced',
+    dueChecks: 'key, organisationId, dueAt',
+    planItems: 'id, organisationId',
+    studyCards: 'versionId, userId',
   })
   db = instance
   return instance

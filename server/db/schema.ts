@@ -4,6 +4,7 @@ import { sql } from 'drizzle-orm'
 import { index, integer, real, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core'
 import { ROLES } from '../../shared/types/roles'
 import { VERSION_STATUSES, type HazardCategory } from '../../shared/types/breakdown'
+import { PLAN_REASONS } from '../../shared/types/plan'
 import type { BreakdownContent } from '../../shared/schemas/breakdown'
 
 const id = () => text('id').primaryKey()
@@ -32,6 +33,8 @@ export const memberships = sqliteTable('memberships', {
   organisationId: text('organisation_id').notNull().references(() => organisations.id, { onDelete: 'cascade' }),
   userId: text('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
   role: text('role', { enum: ROLES }).notNull(),
+  // The daily reminder e-mail (checks due, plan items late); each person can turn it off.
+  digestEmails: integer('digest_emails', { mode: 'boolean' }).notNull().default(true),
   createdAt: createdAt(),
 }, t => [
   uniqueIndex('memberships_user_unique').on(t.userId),
@@ -196,6 +199,8 @@ export const lessons = sqliteTable('lessons', {
   acknowledgement: text('acknowledgement', { mode: 'json' }).$type<{ name: string, signature: string | null, at: number } | null>(),
   signedOffAt: integer('signed_off_at', { mode: 'timestamp_ms' }),
   stageSeconds: text('stage_seconds', { mode: 'json' }).$type<Record<string, number>>().notNull().default(sql`'{}'`),
+  // A refresher after a new version: only these element ids are presented and tried; null is the whole job.
+  focus: text('focus', { mode: 'json' }).$type<string[] | null>(),
   clientUpdatedAt: integer('client_updated_at').notNull(),
   updatedByDevice: text('updated_by_device').notNull(),
   createdAt: createdAt(),
@@ -239,9 +244,95 @@ export const lessonScores = sqliteTable('lesson_scores', {
 export const changeFeed = sqliteTable('change_feed', {
   seq: integer('seq').primaryKey({ autoIncrement: true }),
   organisationId: text('organisation_id').notNull(),
-  entity: text('entity', { enum: ['lesson', 'version', 'learner', 'plan'] }).notNull(),
+  entity: text('entity', { enum: ['lesson', 'version', 'learner', 'plan', 'check'] }).notNull(),
   entityId: text('entity_id').notNull(),
 }, t => [index('change_feed_org_seq_idx').on(t.organisationId, t.seq)])
 
 export type Lesson = typeof lessons.$inferSelect
 export type LessonEventRow = typeof lessonEvents.$inferSelect
+
+// ---- Plan, spot checks, reminders (issue 6) ---------------------------------------------
+
+// One row per learner × job that is needed. No row means "not needed"; the cell's other states
+// (in training, ready, check due, re-teach, late) are derived from lessons and checks.
+export const planItems = sqliteTable('plan_items', {
+  id: id(),
+  organisationId: text('organisation_id').notNull().references(() => organisations.id, { onDelete: 'cascade' }),
+  learnerId: text('learner_id').notNull().references(() => learners.id, { onDelete: 'cascade' }),
+  jobId: text('job_id').notNull().references(() => jobs.id, { onDelete: 'cascade' }),
+  // A calendar date, YYYY-MM-DD, in the organisation's own days (no time zone arithmetic).
+  targetDate: text('target_date'),
+  reason: text('reason', { enum: PLAN_REASONS }).notNull(),
+  note: text('note').notNull().default(''),
+  createdBy: text('created_by').references(() => users.id, { onDelete: 'set null' }),
+  createdAt: createdAt(),
+  updatedAt: integer('updated_at', { mode: 'timestamp_ms' }).notNull().default(sql`(unixepoch('subsec') * 1000)`),
+}, t => [
+  uniqueIndex('plan_items_learner_job_unique').on(t.organisationId, t.learnerId, t.jobId),
+  index('plan_items_job_idx').on(t.organisationId, t.jobId),
+])
+
+// A spot check as the tablets send it (id made on the tablet), merged like a lesson: fields
+// last-writer-wins by (finished, client time, device id). Its marks are check_events.
+export const spotChecks = sqliteTable('spot_checks', {
+  id: id(),
+  organisationId: text('organisation_id').notNull().references(() => organisations.id, { onDelete: 'cascade' }),
+  coachUserId: text('coach_user_id').references(() => users.id, { onDelete: 'set null' }),
+  learnerId: text('learner_id').notNull().references(() => learners.id, { onDelete: 'cascade' }),
+  jobId: text('job_id').notNull().references(() => jobs.id, { onDelete: 'cascade' }),
+  versionId: text('version_id').notNull().references(() => breakdownVersions.id, { onDelete: 'cascade' }),
+  // The lesson this check follows up, when known.
+  lessonId: text('lesson_id'),
+  startedAt: integer('started_at', { mode: 'timestamp_ms' }).notNull(),
+  // Element ids (step or key point ids) the coach chose to check; key point ids may carry
+  // a ":reason" suffix for "tells the reason".
+  elements: text('elements', { mode: 'json' }).$type<string[]>().notNull().default(sql`'[]'`),
+  note: text('note').notNull().default(''),
+  finishedAt: integer('finished_at', { mode: 'timestamp_ms' }),
+  // Computed on the server from the marks with shared/utils (checkOutcome), never sent.
+  outcome: text('outcome', { enum: ['clean', 'stay', 'reteach'] }),
+  // The taper step this check was due at (index into SPOT_CHECK_INTERVAL_DAYS) and the next one.
+  intervalIndex: integer('interval_index').notNull().default(0),
+  nextIntervalIndex: integer('next_interval_index'),
+  nextDueAt: integer('next_due_at'),
+  clientUpdatedAt: integer('client_updated_at').notNull(),
+  updatedByDevice: text('updated_by_device').notNull(),
+  createdAt: createdAt(),
+}, t => [
+  index('spot_checks_org_idx').on(t.organisationId),
+  index('spot_checks_learner_job_idx').on(t.organisationId, t.learnerId, t.jobId),
+])
+
+// Append-only marks of a spot check; the same rules as lesson_events.
+export const checkEvents = sqliteTable('check_events', {
+  id: id(),
+  organisationId: text('organisation_id').notNull(),
+  checkId: text('check_id').notNull().references(() => spotChecks.id, { onDelete: 'cascade' }),
+  elementId: text('element_id'),
+  kind: text('kind').notNull(),
+  value: text('value'),
+  clientTime: integer('client_time').notNull(),
+  deviceId: text('device_id').notNull(),
+  seq: integer('seq').notNull(),
+  receivedAt: integer('received_at').notNull(),
+}, t => [index('check_events_check_idx').on(t.checkId)])
+
+// Scheduled tasks take a lease here before they run, so two app instances never run one twice.
+export const taskLeases = sqliteTable('task_leases', {
+  name: text('name').primaryKey(),
+  holder: text('holder').notNull(),
+  expiresAt: integer('expires_at').notNull(),
+})
+
+// One reminder digest per person per day at most (the unique index is the guarantee).
+export const digestSends = sqliteTable('digest_sends', {
+  id: id(),
+  organisationId: text('organisation_id').notNull().references(() => organisations.id, { onDelete: 'cascade' }),
+  userId: text('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
+  day: text('day').notNull(),
+  sentAt: integer('sent_at').notNull(),
+}, t => [uniqueIndex('digest_sends_user_day_unique').on(t.userId, t.day)])
+
+export type PlanItem = typeof planItems.$inferSelect
+export type SpotCheck = typeof spotChecks.$inferSelect
+export type CheckEventRow = typeof checkEvents.$inferSelect

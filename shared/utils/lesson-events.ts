@@ -2,7 +2,9 @@
 // Replaying them in one agreed order gives the same state on every device and on the server.
 import { MARK_VALUES, type MarkValue } from './scoring'
 
-export const EVENT_KINDS = ['mark', 'order', 'order-all', 'undo', 'pass-open', 'pass-close', 'present'] as const
+// 'observer-mark': a second coach's own mark of the same try-out element, kept apart from the lesson's
+// score and compared with the first coach's marks (Cohen's kappa on the review).
+export const EVENT_KINDS = ['mark', 'order', 'order-all', 'undo', 'pass-open', 'pass-close', 'present', 'observer-mark'] as const
 export type EventKind = (typeof EVENT_KINDS)[number]
 
 export const PASS_TYPES = ['P1', 'P2', 'P3', 'T1', 'T2', 'T3', 'T4'] as const

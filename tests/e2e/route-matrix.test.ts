@@ -1,5 +1,7 @@
+/// <reference types="vite/client" />
 // The role × route matrix. Every file under server/api/ must have an entry here, so no
 // route can skip the authorization check: a new route fails this test until it is listed.
+// Areas keep their entries in tests/e2e/route-matrix/<area>.ts (export const entries), merged below.
 import { readdirSync, statSync } from 'node:fs'
 import { join, relative } from 'node:path'
 import { randomUUID } from 'node:crypto'
@@ -10,14 +12,10 @@ import { addMember, signUp, uniqueEmail } from '../support/accounts'
 import { photoForm } from '../support/photos'
 import { ROLES, type Role } from '../../shared/types/roles'
 
-type Access = 'public' | 'signed-in' | Role[]
-// `ownSession`: the request replaces or ends the caller's session, so it runs on a copy.
-interface Entry { access: Access, path?: () => string, body?: () => unknown, ownSession?: boolean }
-
-const missingId = () => randomUUID()
+import { missingId, type Entry } from '../support/route-matrix'
 
 // Bodies are valid so that the answer speaks of the role, not of the input.
-export const MATRIX: Record<string, Entry> = {
+const CORE: Record<string, Entry> = {
   'GET /api/health': { access: 'public' },
   'GET /api/dev/mail': { access: 'public' },
   'POST /api/auth/signup': { access: 'public', ownSession: true, body: () => ({ organisation: 'Matrix Org', name: 'M', email: uniqueEmail('m'), password: 'matrix passphrase' }) },
@@ -68,6 +66,9 @@ export const MATRIX: Record<string, Entry> = {
   'POST /api/uploads': { access: ['coach', 'admin'], body: () => photoForm() },
   'GET /api/uploads/[id]': { access: 'signed-in', path: () => `/api/uploads/${missingId()}` },
 }
+
+const areaFiles = import.meta.glob<{ entries: Record<string, Entry> }>('./route-matrix/*.ts', { eager: true })
+export const MATRIX: Record<string, Entry> = Object.assign({}, CORE, ...Object.values(areaFiles).map(f => f.entries))
 
 function routeFiles(dir: string): string[] {
   return readdirSync(dir).flatMap((name) => {
