@@ -1,0 +1,150 @@
+// The derived training state of every learner × job of one organisation (shared/utils/training-status.ts),
+// loaded set-based: one read batch of four statements (plan items, lessons, finished spot checks,
+// published versions), whatever the number of learners, then grouped in memory. The plan, Today's
+// due checks (GET /api/sync) and the reminder digest all read it, so they agree on every cell.
+import type { InValue, Row } from '@libsql/client'
+import { trainingCell, type TrainingCell, type TrainingFacts } from '../../shared/utils/training-status'
+import type { PlanReason } from '../../shared/types/plan'
+import { nextCheckDate } from '../../shared/utils/spot-check-schedule'
+
+export interface TrainingRow extends TrainingCell {
+  learnerId: string
+  jobId: string
+  planItem: TrainingFacts['planItem']
+  currentVersionId: string | null
+  currentVersionNumber: number | null
+  /** the latest signed-off lesson (the one that decides readiness) */
+  lastLessonId: string | null
+  /** the latest finished spot check */
+  lastCheckId: string | null
+}
+
+export interface TrainingFilter { learnerIds?: string[], jobIds?: string[] }
+
+// Id lists longer than this are filtered in memory rather than bound into the statement
+// (SQLite's 32,766 bound-variable limit, and long IN lists are no faster than a scan of one org).
+const MAX_BOUND_IDS = 500
+
+function idClause(column: string, ids: string[] | undefined): { sql: string, args: string[] } {
+  if (!ids || ids.length > MAX_BOUND_IDS) return { sql: '', args: [] }
+  if (!ids.length) return { sql: ' and 0', args: [] }
+  return { sql: ` and ${column} in (${ids.map(() => '?').join(',')})`, args: ids }
+}
+
+function parseFocus(value: unknown): string[] | null {
+  if (value == null) return null
+  try {
+    const parsed = JSON.parse(String(value))
+    return Array.isArray(parsed) ? parsed.map(String) : null
+  }
+  catch {
+    return null
+  }
+}
+
+const num = (v: unknown) => (v == null ? null : Number(v))
+
+/** Every learner × job pair that has a plan item, a lesson or a check, for one organisation (archived learners and jobs included; callers leave them out). */
+export async function trainingRows(organisationId: string, filter: TrainingFilter = {}, now: number = Date.now()): Promise<TrainingRow[]> {
+  const db = await useDb()
+  const clauses = (learnerCol: string, jobCol: string) => {
+    const l = idClause(learnerCol, filter.learnerIds)
+    const j = idClause(jobCol, filter.jobIds)
+    return { sql: l.sql + j.sql, args: [organisationId, ...l.args, ...j.args] as InValue[] }
+  }
+  const p = clauses('learner_id', 'job_id')
+  const l = clauses('l.learner_id', 'l.job_id')
+  const c = clauses('learner_id', 'job_id')
+  const v = idClause('job_id', filter.jobIds)
+  const [planRes, lessonRes, checkRes, versionRes] = await db.$client.batch([
+    { sql: `select id, learner_id, job_id, target_date, reason, note from plan_items where organisation_id = ?${p.sql}`, args: p.args },
+    {
+      sql: `select l.id, l.learner_id, l.job_id, l.version_id, v.number, l.signed_off_at, l.decision, l.focus
+            from lessons l join breakdown_versions v on v.id = l.version_id
+            where l.organisation_id = ?${l.sql}`,
+      args: l.args,
+    },
+    {
+      sql: `select id, learner_id, job_id, finished_at, outcome, next_interval_index, next_due_at from spot_checks
+            where organisation_id = ? and finished_at is not null and outcome is not null${c.sql}`,
+      args: c.args,
+    },
+    { sql: `select job_id, id, number from breakdown_versions where organisation_id = ? and status = 'published'${v.sql}`, args: [organisationId, ...v.args] },
+  ], 'read')
+
+  const learnerSet = filter.learnerIds ? new Set(filter.learnerIds) : null
+  const jobSet = filter.jobIds ? new Set(filter.jobIds) : null
+  const current = new Map<string, { id: string, number: number }>()
+  for (const r of versionRes!.rows) {
+    const number = Number(r.number)
+    const known = current.get(r.job_id as string)
+    if (!known || known.number < number) current.set(r.job_id as string, { id: r.id as string, number })
+  }
+
+  interface Pair { learnerId: string, jobId: string, facts: TrainingFacts }
+  const pairs = new Map<string, Pair>()
+  const pairOf = (row: Row): Pair | null => {
+    const learnerId = row.learner_id as string
+    const jobId = row.job_id as string
+    if ((learnerSet && !learnerSet.has(learnerId)) || (jobSet && !jobSet.has(jobId))) return null
+    const key = `${learnerId}|${jobId}`
+    let pair = pairs.get(key)
+    if (!pair) {
+      pair = { learnerId, jobId, facts: { planItem: null, current: current.get(jobId) ?? null, lessons: [], lessonInProgress: false, checks: [] } }
+      pairs.set(key, pair)
+    }
+    return pair
+  }
+
+  for (const r of planRes!.rows) {
+    const pair = pairOf(r)
+    if (pair) pair.facts.planItem = { id: r.id as string, targetDate: (r.target_date as string | null) ?? null, reason: r.reason as PlanReason, note: (r.note as string) ?? '' }
+  }
+  for (const r of lessonRes!.rows) {
+    const pair = pairOf(r)
+    if (!pair) continue
+    if (r.signed_off_at == null) {
+      pair.facts.lessonInProgress = true
+      continue
+    }
+    pair.facts.lessons.push({
+      id: r.id as string,
+      versionId: r.version_id as string,
+      versionNumber: Number(r.number),
+      signedOffAt: Number(r.signed_off_at),
+      decision: (r.decision as 'ready' | 'another-pass' | null) ?? null,
+      focus: parseFocus(r.focus),
+    })
+  }
+  for (const r of checkRes!.rows) {
+    const pair = pairOf(r)
+    if (!pair) continue
+    const finishedAt = Number(r.finished_at)
+    const nextIndex = num(r.next_interval_index) ?? 0
+    pair.facts.checks.push({
+      id: r.id as string,
+      finishedAt,
+      outcome: r.outcome as 'clean' | 'stay' | 'reteach',
+      nextIntervalIndex: nextIndex,
+      // The sync merge always stores it; worked out the same way should a row lack it.
+      nextDueAt: num(r.next_due_at) ?? nextCheckDate(new Date(finishedAt), nextIndex).getTime(),
+    })
+  }
+
+  const out: TrainingRow[] = []
+  for (const { learnerId, jobId, facts } of pairs.values()) {
+    const lastLesson = facts.lessons.reduce<TrainingFacts['lessons'][number] | null>((a, b) => (!a || b.signedOffAt > a.signedOffAt || (b.signedOffAt === a.signedOffAt && b.id > a.id) ? b : a), null)
+    const lastCheck = facts.checks.reduce<TrainingFacts['checks'][number] | null>((a, b) => (!a || b.finishedAt > a.finishedAt || (b.finishedAt === a.finishedAt && b.id > a.id) ? b : a), null)
+    out.push({
+      ...trainingCell(facts, now),
+      learnerId,
+      jobId,
+      planItem: facts.planItem,
+      currentVersionId: facts.current?.id ?? null,
+      currentVersionNumber: facts.current?.number ?? null,
+      lastLessonId: lastLesson?.id ?? null,
+      lastCheckId: lastCheck?.id ?? null,
+    })
+  }
+  return out
+}
