@@ -70,7 +70,9 @@ export function replayLesson(events: readonly LessonEvent[], content: BreakdownC
   }
 
   for (const e of effectiveEvents(events)) {
-    if (e.kind === 'undo') continue
+    // A second coach's marks are compared with these (shared/utils/agreement.ts), never scored,
+    // and must not even open a pass of the lesson.
+    if (e.kind === 'undo' || e.kind === 'observer-mark') continue
     const p = pass(e.pass)
     if (!p) continue
     const ids = passElementIds(p.type, elements)
