@@ -6,6 +6,7 @@ import { STAFF_ROLES, type Role } from '#shared/types/roles'
 import { lessonsOf, localDb, offlineLearners, offlineVersions, storePhoto, storeReferenceData } from '~/utils/localdb'
 import { keepForLessons, photoIdsOf, serverUnreachable, statusOf, toOfflineLearner, toOfflineVersion, type LearnerAnswer, type TabletDataSummary, type VersionAnswer } from '~/utils/offline'
 import { prunePhotos, saveTabletDataSummary, storedPhotoKeys, tabletDataSummary } from '~/utils/offline-store'
+import { downloadRefreshers } from '~/utils/refresher-store'
 
 /** As much of a GET /api/jobs row as the tablet needs. */
 interface JobRow { published: { id: string } | null }
@@ -75,6 +76,11 @@ export function useOfflineData() {
     const fresh = versions.filter(Boolean)
     const merged = keepForLessons({ versions: fresh, learners: roster }, { versions: storedVersions, learners: storedLearners }, lessons)
     await storeReferenceData(organisationId, merged)
+    // Who was trained on an older version, so a refresher can start offline. A lost connection
+    // stops the refresh; any other refusal keeps the previous copy.
+    await downloadRefreshers(organisationId).catch((error) => {
+      if (serverUnreachable(statusOf(error))) throw error
+    })
 
     // Photos: an upload never changes (a new photo gets a new id), so only new ones are fetched.
     const have = await storedPhotoKeys()

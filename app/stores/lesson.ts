@@ -4,6 +4,7 @@
 import { defineStore } from 'pinia'
 import type { BreakdownContent } from '#shared/schemas/breakdown'
 import { elementsOf, passElementIds, replayLesson } from '#shared/utils/lesson-state'
+import { focusContent } from '#shared/utils/refresher'
 import { parsePassKey, type PassType } from '#shared/utils/lesson-events'
 import { MARK_LABELS, type MarkValue } from '#shared/utils/scoring'
 import type { VersionDetail } from '~/types/jobs'
@@ -26,7 +27,10 @@ export const useLessonStore = defineStore('lesson', () => {
   /** A write that failed, in words a coach can act on. */
   const saveError = ref('')
 
-  const content = computed<BreakdownContent | null>(() => version.value?.content ?? null)
+  // A refresher works on the changed elements only, and is scored on them, as the server scores it.
+  // The focus array keeps its identity when the row is replaced on a move, so nothing is replayed then.
+  const focus = computed(() => lesson.value?.focus ?? null)
+  const content = computed<BreakdownContent | null>(() => (version.value ? focusContent(version.value.content, focus.value) : null))
   const elements = computed(() => (content.value ? elementsOf(content.value) : null))
   const state = computed(() => (content.value ? replayLesson(events.value, content.value) : null))
   const readOnly = computed(() => Boolean(lesson.value?.signedOffAt))
@@ -293,7 +297,7 @@ export const useLessonStore = defineStore('lesson', () => {
 
   return {
     lesson, version, learnerName, events, status, saving, lastSaved, saveError,
-    content, elements, state, readOnly, cursor, currentPass, currentType, currentIds, currentCards, currentCard, undoTarget,
+    focus, content, elements, state, readOnly, cursor, currentPass, currentType, currentIds, currentCards, currentCard, undoTarget,
     load, reset, record, patch, signOff, moveTo, goToIndex, goToStage, openPass, closePass, mark, markPresented, nameStep, allInOrder, undo, setPrepare,
     startCounting, stopCounting, flushStageTime, saveStageTime, stageSeconds,
   }

@@ -49,6 +49,11 @@ export interface LocalLesson {
   acknowledgement: { name: string, signature: string | null, at: number } | null
   signedOffAt: number | null
   stageSeconds: Partial<Record<LessonStage, number>>
+  /**
+   * A refresher after a new version: the changed step and key point ids it presents and tries out
+   * (shared/utils/refresher.ts focusContent); null, or absent on lessons made before refreshers, is the whole job.
+   */
+  focus?: string[] | null
   /** 0 while the server has not taken the latest change. */
   synced: 0 | 1
 }

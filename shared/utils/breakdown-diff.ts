@@ -1,7 +1,7 @@
 // Compare two versions of a breakdown by lineage id: what was added, removed, reworded or moved.
 // "Moved" is decided with a longest common subsequence (diff-sequences, Jest's Myers diff) over the
 // siblings both versions share, so one step moved up does not mark every step below it as moved.
-import diffSequences from 'diff-sequences'
+import diffSequencesExport from 'diff-sequences'
 import type { BreakdownContent } from '../schemas/breakdown'
 
 export type DiffLevel = 'unit' | 'step' | 'keyPoint'
@@ -51,6 +51,10 @@ function flatten(content: BreakdownContent): { order: Flat[], byId: Map<string, 
   })
   return { order, byId: new Map(order.map(f => [f.id, f])), children }
 }
+
+// diff-sequences is CommonJS with `exports.default`: bundlers hand over the function, while Node's
+// own ESM loader (the Nitro server) hands over the exports object holding it.
+const diffSequences = ((diffSequencesExport as unknown as { default?: typeof diffSequencesExport }).default ?? diffSequencesExport)
 
 /** Ids that kept their parent but not their place among the siblings both versions share. */
 function movedAmongSiblings(older: string[], newer: string[], keep: (id: string) => boolean): Set<string> {

@@ -33,5 +33,8 @@ export default defineEventHandler(async (event) => {
   })
   if (outcome.kind === 'missing') throw notFound('That breakdown version')
   if (outcome.kind === 'locked') throw conflict(outcome.status === 'published' ? 'This version is published already.' : 'A retired version cannot be published again; start a new draft from the latest published one.')
-  return outcome.version
+  // Everyone trained on an older version is flagged for a refresher now; the editor says how many.
+  // The version is published whatever happens here, so a failure to count answers null, not an error.
+  const flaggedForRefresher = await retrainingEntries(organisationId, [outcome.version!.jobId]).then(list => list.length, () => null)
+  return { ...outcome.version!, flaggedForRefresher }
 })
