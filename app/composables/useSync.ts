@@ -3,7 +3,8 @@
 import { liveQuery } from 'dexie'
 import type { PullAnswer } from '~/utils/sync-pull-types'
 import { localDb } from '~/utils/localdb'
-import { applyPushAnswer, outbox, planPushes, type PushAnswer, type SyncedEvent, type SyncedLesson } from '~/utils/sync-client'
+import { storePulledChecks, type SyncedCheck, type SyncedCheckEvent } from '~/utils/local-checks'
+import { applyPushAnswer, EVENTS_PER_PUSH, outbox, planPushes, type PushAnswer, type SyncedEvent, type SyncedLesson } from '~/utils/sync-client'
 
 export interface SyncState {
   running: boolean
@@ -12,9 +13,12 @@ export interface SyncState {
   planned: number
   progress: string
   problem: string | null
-  waiting: { lessons: number, events: number }
+  /** events: lesson marks and spot check marks together. */
+  waiting: { lessons: number, events: number, checks: number }
   rejectedLessons: SyncedLesson[]
   rejectedEvents: SyncedEvent[]
+  rejectedChecks: SyncedCheck[]
+  rejectedCheckEvents: SyncedCheckEvent[]
   lastSyncedAt: number | null
 }
 
@@ -22,15 +26,17 @@ let inFlight: Promise<void> | null = null
 let watching: { organisationId: string, subscription: { unsubscribe: () => void } } | null = null
 
 export function useSync() {
-  const state = useState<SyncState>('sync', () => ({ running: false, sent: 0, planned: 0, progress: '', problem: null, waiting: { lessons: 0, events: 0 }, rejectedLessons: [], rejectedEvents: [], lastSyncedAt: null }))
+  const state = useState<SyncState>('sync', () => ({ running: false, sent: 0, planned: 0, progress: '', problem: null, waiting: { lessons: 0, events: 0, checks: 0 }, rejectedLessons: [], rejectedEvents: [], rejectedChecks: [], rejectedCheckEvents: [], lastSyncedAt: null }))
   const member = useMemberStore()
 
   /** The full outbox: what is waiting and what was refused (read after each run, not on every tap). */
   async function readOutbox(organisationId: string) {
     const box = await outbox(organisationId)
-    state.value.waiting = { lessons: box.lessons.length, events: box.events.length }
+    state.value.waiting = { lessons: box.lessons.length, events: box.events.length + box.checkEvents.length, checks: box.checks.length }
     state.value.rejectedLessons = box.rejectedLessons
     state.value.rejectedEvents = box.rejectedEvents
+    state.value.rejectedChecks = box.rejectedChecks
+    state.value.rejectedCheckEvents = box.rejectedCheckEvents
   }
 
   /**
@@ -44,13 +50,15 @@ export function useSync() {
     watching?.subscription.unsubscribe()
     const db = localDb()
     const subscription = liveQuery(async () => ({
-      events: await db.events.where('synced').equals(0).count(),
+      events: await db.events.where('synced').equals(0).count() + await db.checkEvents.where('synced').equals(0).count(),
       lessons: await db.lessons.where('synced').equals(0).count(),
+      checks: await db.checks.where('synced').equals(0).count(),
     })).subscribe({
       next: (counts) => {
         state.value.waiting = {
-          events: Math.max(0, counts.events - state.value.rejectedEvents.length),
+          events: Math.max(0, counts.events - state.value.rejectedEvents.length - state.value.rejectedCheckEvents.length),
           lessons: Math.max(0, counts.lessons - state.value.rejectedLessons.length),
+          checks: Math.max(0, counts.checks - state.value.rejectedChecks.length),
         }
       },
     })
@@ -75,11 +83,11 @@ export function useSync() {
     try {
       const device = await deviceId()
       const box = await outbox(organisationId)
-      const pushes = planPushes(device, box.lessons, box.events)
+      const pushes = planPushes(device, box.lessons, box.events, EVENTS_PER_PUSH, box.checks, box.checkEvents)
       state.value.planned = pushes.length
       state.value.sent = 0
       for (const [i, push] of pushes.entries()) {
-        state.value.progress = `Sending ${i + 1} of ${pushes.length}: ${push.events.length} marks, ${push.lessons.length} lessons`
+        state.value.progress = `Sending ${i + 1} of ${pushes.length}: ${push.events.length} marks, ${push.lessons.length} lessons${push.checks.length ? `, ${push.checks.length} spot checks` : ''}`
         const answer = await $fetch<PushAnswer>('/api/sync', { method: 'POST', body: push })
         await applyPushAnswer(push, answer)
         state.value.sent = i + 1
@@ -94,6 +102,7 @@ export function useSync() {
         await db.transaction('rw', db.lessons, async () => {
           for (const l of pulled.lessons) if (l.score) await db.lessons.update(l.id, { serverScore: l.score } as Partial<SyncedLesson>)
         })
+        await storePulledChecks(organisationId, { full: since === 0, checks: pulled.checks ?? [], planItems: pulled.planItems ?? [], removedPlanItems: pulled.removedPlanItems ?? [], dueChecks: pulled.dueChecks })
         since = pulled.cursor
         if (!pulled.more) break
       }

@@ -3,6 +3,8 @@
 //   same id with other content is rejected as a conflict, never overwritten;
 // - lesson fields merge last-writer-wins on (signed off, client time, device id), so any order of
 //   arrival ends in the same row; a signed-off lesson then only takes an acknowledgement;
+// - spot checks and their marks (events naming checkId) follow the same rules (sync-checks.ts);
+// - a refresher lesson (focus) is scored on the focused part of its breakdown only;
 // - scores of every touched lesson are recomputed from all its events with shared/utils.
 // The hot path uses the libSQL client directly: chunked multi-row inserts inside one write
 // transaction, yielding to the event loop between chunks so other requests keep moving. Every
@@ -13,12 +15,14 @@ import type { z } from 'zod'
 import { syncEventSchema, syncLessonSchema, type SyncEvent, type SyncLesson } from '../../shared/schemas/sync'
 import type { BreakdownContent } from '../../shared/schemas/breakdown'
 import { replayLesson } from '../../shared/utils/lesson-state'
+import { focusContent } from '../../shared/utils/refresher'
 import { serialiseWrite } from './write-lock'
+import { checksOfOrganisation, isCheckEventItem, validateCheckItems, writeChecks, type CheckServerResult } from './sync-checks'
 import type { LessonEvent } from '../../shared/utils/lesson-events'
 
 export interface Rejection { id: string, reason: string }
 export interface LessonScore { t1: number | null, t2: number | null, t3: number | null, t4: number | null, order: number | null, recall: number | null, readiness: 'ready' | 'another-pass', represent: unknown[] }
-export interface MergeResult { accepted: string[], rejected: Rejection[], scores: Record<string, LessonScore>, cursor: number, written: { lessons: number, events: number } }
+export interface MergeResult { accepted: string[], rejected: Rejection[], scores: Record<string, LessonScore>, checks: Record<string, CheckServerResult>, cursor: number, written: { lessons: number, events: number, checks: number, checkEvents: number } }
 
 // SQLite allows 32,766 bound variables per statement. The chunks stay far below it because each
 // chunk is one synchronous native call that holds the event loop: a request waiting behind the
@@ -99,12 +103,12 @@ function newer(a: Clock, b: Clock) {
   return false
 }
 
-function mergeableFields(l: { coachUserId: string | null, place: string, startedAt: number, prepare: unknown, helper: string, decision: string | null, signedOffAt: number | null, stageSeconds: unknown }) {
-  return JSON.stringify([l.coachUserId, l.place, l.startedAt, l.prepare, l.helper, l.decision, l.signedOffAt, l.stageSeconds])
+function mergeableFields(l: { coachUserId: string | null, place: string, startedAt: number, prepare: unknown, helper: string, decision: string | null, signedOffAt: number | null, stageSeconds: unknown, focus: readonly string[] | null }) {
+  return JSON.stringify([l.coachUserId, l.place, l.startedAt, l.prepare, l.helper, l.decision, l.signedOffAt, l.stageSeconds, l.focus])
 }
 
 function storedFields(row: Record<string, unknown>) {
-  return mergeableFields({ coachUserId: row.coach_user_id as string | null, place: row.place as string, startedAt: Number(row.started_at), prepare: JSON.parse(String(row.prepare ?? '{}')), helper: row.helper as string, decision: (row.decision as string | null) ?? null, signedOffAt: row.signed_off_at == null ? null : Number(row.signed_off_at), stageSeconds: JSON.parse(String(row.stage_seconds ?? '{}')) })
+  return mergeableFields({ coachUserId: row.coach_user_id as string | null, place: row.place as string, startedAt: Number(row.started_at), prepare: JSON.parse(String(row.prepare ?? '{}')), helper: row.helper as string, decision: (row.decision as string | null) ?? null, signedOffAt: row.signed_off_at == null ? null : Number(row.signed_off_at), stageSeconds: JSON.parse(String(row.stage_seconds ?? '{}')), focus: row.focus == null ? null : JSON.parse(String(row.focus)) as string[] })
 }
 
 function ackKey(ack: { at: number, name: string } | null) {
@@ -130,9 +134,15 @@ export async function mergePush(client: Client, organisationId: string, deviceId
     else rejected.push({ id: idOf(item), reason: `Lesson not valid — ${describeIssues(r.error)}` })
   }
   const events: SyncEvent[] = []
+  const checkEventItems: unknown[] = []
   const seenInPush = new Map<string, SyncEvent>()
   for (const item of body.events) {
     if (++validated % VALIDATE_CHUNK === 0) await yieldToLoop()
+    // A spot check's mark names checkId instead of lessonId; it is checked with the checks below.
+    if (isCheckEventItem(item)) {
+      checkEventItems.push(item)
+      continue
+    }
     const r = syncEventSchema.safeParse(item)
     if (!r.success) {
       rejected.push({ id: idOf(item), reason: `Mark not valid — ${describeIssues(r.error)}` })
@@ -151,7 +161,7 @@ export async function mergePush(client: Client, organisationId: string, deviceId
     seenInPush.set(e.id, e)
     events.push(e)
   }
-  for (const item of body.checks) rejected.push({ id: idOf(item), reason: 'Spot checks cannot be sent yet; keep them on the tablet until this server is updated.' })
+  const checkItems = validateCheckItems(deviceId, body.checks, checkEventItems, rejected)
 
   // 2. Every id a lesson names must belong to this organisation.
   const idsIn = async (table: string, ids: string[], extra = '') => new Set((await selectIn(client, `select id from ${table} where organisation_id = ? ${extra} and id in`, ids, '', [organisationId])).map(r => r.id as string))
@@ -177,11 +187,16 @@ export async function mergePush(client: Client, organisationId: string, deviceId
     if (reason) rejected.push({ id: l.id, reason })
     return !reason
   })
+  const validChecks = await checksOfOrganisation(client, organisationId, checkItems.checks, rejected)
 
   return serialiseWrite(async () => {
     const tx = await client.transaction('write')
     try {
       const result = await writeMerge(tx, organisationId, deviceId, validLessons, events, now, accepted, rejected)
+      const checks = await writeChecks(tx, organisationId, deviceId, validChecks.checks, validChecks.contents, checkItems.events, now, accepted, rejected)
+      result.checks = checks.results
+      result.written = { ...result.written, ...checks.written }
+      if (checks.written.checks + checks.written.checkEvents > 0) result.cursor = await feedTop(tx, organisationId)
       await tx.commit()
       return result
     }
@@ -212,10 +227,10 @@ async function writeMerge(tx: Transaction, organisationId: string, deviceId: str
     const row = existing.get(l.id)
     if (!row) {
       statements.push({
-        sql: 'insert into lessons (id, organisation_id, coach_user_id, learner_id, job_id, version_id, place, started_at, prepare, helper, decision, acknowledgement, signed_off_at, stage_seconds, client_updated_at, updated_by_device, created_at) values (?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?)',
-        args: [l.id, organisationId, l.coachUserId, l.learnerId, l.jobId, l.versionId, l.place, l.startedAt, JSON.stringify(l.prepare), l.helper, l.decision, l.acknowledgement ? JSON.stringify(l.acknowledgement) : null, l.signedOffAt, JSON.stringify(l.stageSeconds), l.updatedAt, deviceId, now],
+        sql: 'insert into lessons (id, organisation_id, coach_user_id, learner_id, job_id, version_id, place, started_at, prepare, helper, decision, acknowledgement, signed_off_at, stage_seconds, focus, client_updated_at, updated_by_device, created_at) values (?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?)',
+        args: [l.id, organisationId, l.coachUserId, l.learnerId, l.jobId, l.versionId, l.place, l.startedAt, JSON.stringify(l.prepare), l.helper, l.decision, l.acknowledgement ? JSON.stringify(l.acknowledgement) : null, l.signedOffAt, JSON.stringify(l.stageSeconds), l.focus ? JSON.stringify(l.focus) : null, l.updatedAt, deviceId, now],
       })
-      existing.set(l.id, { id: l.id, organisation_id: organisationId, coach_user_id: l.coachUserId, learner_id: l.learnerId, job_id: l.jobId, version_id: l.versionId, place: l.place, started_at: l.startedAt, prepare: JSON.stringify(l.prepare), helper: l.helper, decision: l.decision, signed_off_at: l.signedOffAt, stage_seconds: JSON.stringify(l.stageSeconds), client_updated_at: l.updatedAt, updated_by_device: deviceId, acknowledgement: l.acknowledgement ? JSON.stringify(l.acknowledgement) : null })
+      existing.set(l.id, { id: l.id, organisation_id: organisationId, coach_user_id: l.coachUserId, learner_id: l.learnerId, job_id: l.jobId, version_id: l.versionId, place: l.place, started_at: l.startedAt, prepare: JSON.stringify(l.prepare), helper: l.helper, decision: l.decision, signed_off_at: l.signedOffAt, stage_seconds: JSON.stringify(l.stageSeconds), focus: l.focus ? JSON.stringify(l.focus) : null, client_updated_at: l.updatedAt, updated_by_device: deviceId, acknowledgement: l.acknowledgement ? JSON.stringify(l.acknowledgement) : null })
       accepted.push(l.id)
       touched.add(l.id)
       feed.add(l.id)
@@ -237,8 +252,8 @@ async function writeMerge(tx: Transaction, organisationId: string, deviceId: str
       // A signed-off copy always wins the clock, so an open copy never gets here over a signed-off one.
       const ack = ackWins ? l.acknowledgement : storedAck
       statements.push({
-        sql: 'update lessons set coach_user_id=?, place=?, started_at=?, prepare=?, helper=?, decision=?, acknowledgement=?, signed_off_at=?, stage_seconds=?, client_updated_at=?, updated_by_device=? where id=? and organisation_id=?',
-        args: [l.coachUserId, l.place, l.startedAt, JSON.stringify(l.prepare), l.helper, l.decision, ack ? JSON.stringify(ack) : null, l.signedOffAt, JSON.stringify(l.stageSeconds), l.updatedAt, deviceId, l.id, organisationId],
+        sql: 'update lessons set coach_user_id=?, place=?, started_at=?, prepare=?, helper=?, decision=?, acknowledgement=?, signed_off_at=?, stage_seconds=?, focus=?, client_updated_at=?, updated_by_device=? where id=? and organisation_id=?',
+        args: [l.coachUserId, l.place, l.startedAt, JSON.stringify(l.prepare), l.helper, l.decision, ack ? JSON.stringify(ack) : null, l.signedOffAt, JSON.stringify(l.stageSeconds), l.focus ? JSON.stringify(l.focus) : null, l.updatedAt, deviceId, l.id, organisationId],
       })
       feed.add(l.id)
       touched.add(l.id)
@@ -319,8 +334,12 @@ async function writeMerge(tx: Transaction, organisationId: string, deviceId: str
   for (const part of chunks([...feed])) {
     await tx.execute({ sql: `insert into change_feed (organisation_id, entity, entity_id) values ${part.map(() => '(?, \'lesson\', ?)').join(',')}`, args: part.flatMap(id => [organisationId, id]) })
   }
-  const cursor = Number((await tx.execute({ sql: 'select coalesce(max(seq), 0) as c from change_feed where organisation_id = ?', args: [organisationId] })).rows[0]!.c)
-  return { accepted, rejected, scores, cursor, written: { lessons: lessonsWritten, events: eventsWritten } }
+  const cursor = await feedTop(tx, organisationId)
+  return { accepted, rejected, scores, checks: {}, cursor, written: { lessons: lessonsWritten, events: eventsWritten, checks: 0, checkEvents: 0 } }
+}
+
+async function feedTop(tx: Transaction, organisationId: string) {
+  return Number((await tx.execute({ sql: 'select coalesce(max(seq), 0) as c from change_feed where organisation_id = ?', args: [organisationId] })).rows[0]!.c)
 }
 
 /** Every stored event of a lesson, read in chunks of READ_CHUNK rows with a yield between them. */
@@ -349,8 +368,10 @@ export async function rescore(tx: Transaction | Client, organisationId: string, 
 
 /** Scores a lesson from `events` (all of its events) with shared/utils and stores the score. */
 async function storeScore(tx: Transaction | Client, organisationId: string, lessonId: string, events: readonly LessonEvent[], now: number): Promise<LessonScore> {
-  const versionRow = (await tx.execute({ sql: 'select v.content from lessons l join breakdown_versions v on v.id = l.version_id where l.id = ? and l.organisation_id = ?', args: [lessonId, organisationId] })).rows[0]
-  const content = JSON.parse(versionRow!.content as string) as BreakdownContent
+  const versionRow = (await tx.execute({ sql: 'select v.content, l.focus from lessons l join breakdown_versions v on v.id = l.version_id where l.id = ? and l.organisation_id = ?', args: [lessonId, organisationId] })).rows[0]
+  // A refresher is scored on the part of the breakdown it taught, as the tablet does.
+  const focus = versionRow!.focus == null ? null : JSON.parse(String(versionRow!.focus)) as string[]
+  const content = focusContent(JSON.parse(versionRow!.content as string) as BreakdownContent, focus)
   const state = replayLesson(events, content)
   const score: LessonScore = { t1: state.scores.T1, t2: state.scores.T2, t3: state.scores.T3, t4: state.scores.T4, order: state.scores.order, recall: state.scores.recall, readiness: state.readiness.suggestion, represent: state.readiness.represent }
   await tx.execute({

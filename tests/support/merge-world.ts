@@ -40,3 +40,12 @@ export async function lessonRows(client: Client, lessonIds: string[]) {
   const scores = (await client.execute({ sql: `select lesson_id, t1, t2, t3, t4, order_score, recall, readiness, represent, event_count from lesson_scores where lesson_id in (${q}) order by lesson_id`, args: lessonIds })).rows
   return JSON.parse(JSON.stringify({ lessons, events, scores }))
 }
+
+/** The rows a merge leaves for some spot checks and their marks, without arrival times. */
+export async function checkRows(client: Client, checkIds: string[]) {
+  const q = checkIds.map(() => '?').join(',')
+  const checks = (await client.execute({ sql: `select id, coach_user_id, learner_id, job_id, version_id, lesson_id, started_at, elements, note, finished_at, outcome, interval_index, next_interval_index, next_due_at, client_updated_at, updated_by_device from spot_checks where id in (${q}) order by id`, args: checkIds })).rows
+  const events = (await client.execute({ sql: `select id, check_id, element_id, kind, value, client_time, device_id, seq from check_events where check_id in (${q}) order by id`, args: checkIds })).rows
+  const feed = (await client.execute({ sql: `select count(*) as n from change_feed where entity = 'check' and entity_id in (${q})`, args: checkIds })).rows[0]!.n
+  return JSON.parse(JSON.stringify({ checks, events, fed: Number(feed) > 0 }))
+}
