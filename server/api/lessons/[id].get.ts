@@ -1,4 +1,4 @@
-// One lesson with its marks and score. Coaches, admins and auditors; a learner sees their own.
+// One lesson with its marks (a second observer's too) and score. Coaches, admins and auditors; a learner sees their own.
 import { and, asc, eq } from 'drizzle-orm'
 import { breakdownVersions, jobs, learners, lessonEvents, lessonScores, lessons, users } from '../../db/schema'
 import { idParamsSchema } from '../../../shared/schemas/common'
@@ -13,6 +13,10 @@ export default defineEventHandler(async (event) => {
     learnerName: learners.name,
     learnerUserId: learners.userId,
     jobTitle: jobs.title,
+    // The review names the preparation items the way the runner listed them (prepareItems).
+    jobPurpose: jobs.purpose,
+    toolsAndMaterials: jobs.toolsAndMaterials,
+    workplaceArrangement: jobs.workplaceArrangement,
     versionNumber: breakdownVersions.number,
     content: breakdownVersions.content,
     coachName: users.name,
@@ -35,6 +39,7 @@ export default defineEventHandler(async (event) => {
     ...lesson,
     learnerName: row.learnerName,
     jobTitle: row.jobTitle,
+    job: { purpose: row.jobPurpose, toolsAndMaterials: row.toolsAndMaterials, workplaceArrangement: row.workplaceArrangement },
     versionNumber: row.versionNumber,
     coachName: row.coachName,
     content: row.content,
