@@ -7,7 +7,9 @@ import type { OfflineLearner, OfflineVersion, LocalLesson, LessonStage } from '.
 /** Screens that work from the tablet alone after one online visit (DESIGN.md §4). */
 export function worksOffline(path: string): boolean {
   const clean = path.length > 1 ? path.replace(/\/+$/, '') : path
-  return clean === '/' || clean === '/needs-connection' || clean === '/lessons' || clean.startsWith('/lessons/')
+  return clean === '/' || clean === '/needs-connection' || clean === '/lessons' || clean.startsWith('/lessons/') || clean === '/checks' || clean.startsWith('/checks/')
+    // A learner's study cards and records, kept on the device by app/utils/study-cards.ts.
+    || clean === '/study' || clean.startsWith('/study/')
 }
 
 /** What to call a screen that needs the server, for "… needs a connection". */
@@ -17,6 +19,7 @@ export function screenNeedingConnection(path: string): string {
   if (first === 'jobs') return second === undefined ? 'The jobs list' : second === 'new' ? 'Adding a job' : 'This job'
   if (first === 'versions') return third === 'edit' ? 'The breakdown editor' : third === 'print' ? 'The printable breakdown' : 'This breakdown'
   if (first === 'settings') return second === 'members' ? 'Members' : 'Settings'
+  if (first === 'plan') return 'The plan'
   if (first === 'account') return 'Your account'
   return 'This screen'
 }
