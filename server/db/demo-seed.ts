@@ -1,7 +1,7 @@
 // The demo organisation (DESIGN.md §10): an invented bakery and packaging plant.
 // Every name here is made up. Used by `npm run seed` and by `npm start` on an empty database.
 import { randomUUID } from 'node:crypto'
-import { count } from 'drizzle-orm'
+import { and, count, eq } from 'drizzle-orm'
 import type { LibSQLDatabase } from 'drizzle-orm/libsql'
 import * as schema from './schema'
 import type { Role } from '../../shared/types/roles'
@@ -96,5 +96,39 @@ export async function seedDemo(db: AnyDb, options: { password: string, hash: (pa
     }
     await tx.insert(schema.auditLog).values({ id: randomUUID(), organisationId, actorUserId: null, action: 'demo.seeded', targetType: 'organisation', targetId: organisationId, detail: { accounts: people.length } })
   })
+  await seedDemoPlan(db, organisationId, now.getTime())
   return { organisationId }
+}
+
+/**
+ * The demo plan (issue 6): several needs with their reasons and target dates relative to today,
+ * one of them already late, so the plan matrix looks like a real timetable.
+ */
+async function seedDemoPlan(db: AnyDb, organisationId: string, now: number) {
+  const learnerRows = await db.select({ id: schema.learners.id, name: schema.learners.name }).from(schema.learners).where(eq(schema.learners.organisationId, organisationId))
+  const jobRows = await db.select({ id: schema.jobs.id, title: schema.jobs.title }).from(schema.jobs).where(eq(schema.jobs.organisationId, organisationId))
+  const [coach] = await db.select({ id: schema.users.id }).from(schema.users)
+    .innerJoin(schema.memberships, and(eq(schema.memberships.userId, schema.users.id), eq(schema.memberships.organisationId, organisationId)))
+    .where(eq(schema.users.email, 'coach@bakery.example'))
+  const day = (offset: number) => {
+    const d = new Date(now)
+    d.setDate(d.getDate() + offset)
+    return `${d.getFullYear()}-${String(d.getMonth() + 1).padStart(2, '0')}-${String(d.getDate()).padStart(2, '0')}`
+  }
+  const needs: Array<{ learner: string, job: string, in: number | null, reason: (typeof schema.planItems.$inferInsert)['reason'], note: string }> = [
+    { learner: 'Ilse Brannagh-Okafor', job: 'Thread film on the bag sealer', in: 10, reason: 'turnover', note: 'Takes over the late shift sealer when Pieter leaves.' },
+    { learner: 'Yusra Delacroix-Behn', job: 'Change the slicer blade set', in: -3, reason: 'quality-or-safety', note: 'Torn loaves on line 2 after a blade change.' },
+    { learner: 'Yusra Delacroix-Behn', job: 'Check-weigh a tray', in: 30, reason: 'absence-cover', note: '' },
+    { learner: 'Matthias Quennell', job: 'Grease the mixer gearbox', in: 21, reason: 'absence-cover', note: 'Covers maintenance over the holidays.' },
+    { learner: 'Nadia Strathorne', job: 'Check-weigh a tray', in: 5, reason: 'new-job', note: 'New tray line starts next week.' },
+    { learner: 'Cormac Ainsley-Tove', job: 'Change the slicer blade set', in: 14, reason: 'changed-job', note: 'The blade guard latch changed in version 2.' },
+    { learner: 'Saoirse Pemberton-Ruiz', job: 'Check-weigh a tray', in: null, reason: 'other', note: 'Asked to learn it.' },
+  ]
+  const rows = needs.flatMap((n) => {
+    const learner = learnerRows.find(l => l.name === n.learner)
+    const job = jobRows.find(j => j.title === n.job)
+    if (!learner || !job) return []
+    return [{ id: randomUUID(), organisationId, learnerId: learner.id, jobId: job.id, targetDate: n.in === null ? null : day(n.in), reason: n.reason, note: n.note, createdBy: coach?.id ?? null }]
+  })
+  if (rows.length) await db.insert(schema.planItems).values(rows)
 }
