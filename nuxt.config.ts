@@ -67,6 +67,8 @@ export default defineNuxtConfig({
     // A lesson lives on the tablet (IndexedDB): render it in the browser online as well, the
     // same way it opens from the shell offline.
     '/lessons/**': { ssr: false },
+    // A spot check lives on the tablet too.
+    '/checks/**': { ssr: false },
   },
   compatibilityDate: '2026-11-01',
   nitro: {

@@ -7,6 +7,10 @@ import * as schema from './schema'
 import type { Role } from '../../shared/types/roles'
 import type { BreakdownContent } from '../../shared/schemas/breakdown'
 import { DEMO_JOBS, demoContent } from './demo-jobs'
+import { replayLesson } from '../../shared/utils/lesson-state'
+import type { LessonEvent } from '../../shared/utils/lesson-events'
+import { suggestCheckElements } from '../../shared/utils/check-elements'
+import { checkResult, type CheckEvent } from '../../shared/utils/check-state'
 
 export const DEMO_ORGANISATION = 'Hollowmere Bakery & Packing'
 export const DEFAULT_DEMO_PASSWORD = 'bakery-demo-2026'
@@ -97,6 +101,7 @@ export async function seedDemo(db: AnyDb, options: { password: string, hash: (pa
     await tx.insert(schema.auditLog).values({ id: randomUUID(), organisationId, actorUserId: null, action: 'demo.seeded', targetType: 'organisation', targetId: organisationId, detail: { accounts: people.length } })
   })
   await seedDemoPlan(db, organisationId, now.getTime())
+  await seedDemoChecks(db, organisationId, now.getTime())
   return { organisationId }
 }
 
@@ -131,4 +136,68 @@ async function seedDemoPlan(db: AnyDb, organisationId: string, now: number) {
     return [{ id: randomUUID(), organisationId, learnerId: learner.id, jobId: job.id, targetDate: n.in === null ? null : day(n.in), reason: n.reason, note: n.note, createdBy: coach?.id ?? null }]
   })
   if (rows.length) await db.insert(schema.planItems).values(rows)
+}
+
+/**
+ * Lessons signed off as ready and spot checks (issue 6): one learner's first check is two days
+ * late, another's is due today, and a third had a clean check yesterday, so Today shows checks due
+ * and the taper has something to show. Scores and outcomes come from the same shared/utils the
+ * sync merge uses.
+ */
+async function seedDemoChecks(db: AnyDb, organisationId: string, now: number) {
+  const DAY = 86_400_000
+  const learnerRows = await db.select({ id: schema.learners.id, name: schema.learners.name }).from(schema.learners).where(eq(schema.learners.organisationId, organisationId))
+  const versionRows = await db.select({ id: schema.breakdownVersions.id, jobId: schema.breakdownVersions.jobId, content: schema.breakdownVersions.content, title: schema.jobs.title })
+    .from(schema.breakdownVersions).innerJoin(schema.jobs, eq(schema.jobs.id, schema.breakdownVersions.jobId))
+    .where(and(eq(schema.breakdownVersions.organisationId, organisationId), eq(schema.breakdownVersions.status, 'published')))
+  const [coach] = await db.select({ id: schema.users.id }).from(schema.users).where(eq(schema.users.email, 'coach@bakery.example'))
+  if (!coach) return
+  const deviceId = randomUUID()
+  let seq = 0
+  const taught: Array<{ learner: string, job: string, signedOffDaysAgo: number, check?: { daysAgo: number, intervalIndex: number } }> = [
+    { learner: 'Ilse Brannagh-Okafor', job: 'Thread film on the bag sealer', signedOffDaysAgo: 3 },
+    { learner: 'Nadia Strathorne', job: 'Change the slicer blade set', signedOffDaysAgo: 1 },
+    { learner: 'Matthias Quennell', job: 'Check-weigh a tray', signedOffDaysAgo: 4, check: { daysAgo: 1, intervalIndex: 1 } },
+  ]
+  await db.transaction(async (tx) => {
+    for (const t of taught) {
+      const learner = learnerRows.find(l => l.name === t.learner)
+      const version = versionRows.find(v => v.title === t.job)
+      if (!learner || !version) continue
+      const content = version.content as BreakdownContent
+      const steps = content.units.flatMap(u => u.steps)
+      const keyPoints = steps.flatMap(st => st.keyPoints)
+      const lessonId = randomUUID()
+      const signedOffAt = now - t.signedOffDaysAgo * DAY
+      const startedAt = signedOffAt - 50 * 60_000
+      const ev = (pass: string, kind: LessonEvent['kind'], elementId: string | null, value: string | null): LessonEvent => {
+        seq += 1
+        return { id: randomUUID(), lessonId, pass, elementId, kind, value, clientTime: startedAt + 20 * 60_000 + seq * 5_000, deviceId, seq }
+      }
+      // A clean try-out: every step, key point and reason unaided, the steps named in order.
+      const events = [
+        ...steps.map(st => ev('T1-1', 'mark', st.id, 'unaided')),
+        ev('T2-1', 'order-all', null, null),
+        ...steps.map(st => ev('T2-1', 'mark', st.id, 'unaided')),
+        ...keyPoints.map(k => ev('T3-1', 'mark', k.id, 'unaided')),
+        ...keyPoints.filter(k => k.reason.trim()).map(k => ev('T4-1', 'mark', k.id, 'unaided')),
+      ]
+      await tx.insert(schema.lessons).values({ id: lessonId, organisationId, coachUserId: coach.id, learnerId: learner.id, jobId: version.jobId, versionId: version.id, place: 'Line 2', startedAt: new Date(startedAt), helper: '', decision: 'ready', signedOffAt: new Date(signedOffAt), stageSeconds: { prepare: 240, present: 900, tryout: 1500, followup: 300 }, clientUpdatedAt: signedOffAt, updatedByDevice: deviceId })
+      await tx.insert(schema.lessonEvents).values(events.map(e => ({ ...e, organisationId, receivedAt: signedOffAt })))
+      const state = replayLesson(events, content)
+      await tx.insert(schema.lessonScores).values({ lessonId, organisationId, t1: state.scores.T1, t2: state.scores.T2, t3: state.scores.T3, t4: state.scores.T4, orderScore: state.scores.order, recall: state.scores.recall, readiness: state.readiness.suggestion, represent: state.readiness.represent, eventCount: events.length, computedAt: signedOffAt })
+      if (!t.check) continue
+      // A finished spot check on the suggested elements, every one unaided: clean.
+      const checkId = randomUUID()
+      const finishedAt = now - t.check.daysAgo * DAY
+      const elements = suggestCheckElements(content, checkId)
+      const checkEvents: CheckEvent[] = elements.map((elementId, i) => {
+        seq += 1
+        return { id: randomUUID(), checkId, elementId, kind: 'mark', value: 'unaided', clientTime: finishedAt - (elements.length - i) * 30_000, deviceId, seq }
+      })
+      const result = checkResult({ elements, intervalIndex: t.check.intervalIndex, finishedAt }, checkEvents, content)
+      await tx.insert(schema.spotChecks).values({ id: checkId, organisationId, coachUserId: coach.id, learnerId: learner.id, jobId: version.jobId, versionId: version.id, lessonId, startedAt: new Date(finishedAt - (elements.length + 1) * 30_000), elements, note: 'Weighed three trays without a prompt.', finishedAt: new Date(finishedAt), outcome: result.outcome, intervalIndex: t.check.intervalIndex, nextIntervalIndex: result.nextIntervalIndex, nextDueAt: result.nextDueAt, clientUpdatedAt: finishedAt, updatedByDevice: deviceId })
+      await tx.insert(schema.checkEvents).values(checkEvents.map(e => ({ ...e, organisationId, receivedAt: finishedAt })))
+    }
+  })
 }
