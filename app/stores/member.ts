@@ -10,6 +10,8 @@ export interface Me {
   user: { id: string, name: string, email: string }
   organisation: { id: string, name: string, coachesMayPublish: boolean }
   role: Role
+  /** The person's own settings; absent in an answer remembered on the tablet from before they existed. */
+  settings?: { digestEmails: boolean }
 }
 
 export const useMemberStore = defineStore('member', () => {

@@ -1,0 +1,12 @@
+// Sends today's reminder digests of the caller's organisation now, to everyone who has not had
+// theirs yet (the same once-a-day rule as the scheduled run). Admins only.
+export default defineEventHandler(async (event) => {
+  const caller = await requireRole(event, 'admin')
+  if (!digestSettings().enabled) throw conflict('Reminder e-mails are switched off on this server (DIGEST_ENABLED).')
+  // Its own lease per organisation, so a click here never waits for (or blocks) the scheduled run.
+  const outcome = await withLease(`reminders:digest:${caller.organisation.id}`, DIGEST_LEASE_MS, () => runDigests({ organisationIds: [caller.organisation.id] }))
+  if (!outcome.ran) throw conflict('The digests of your organisation are being sent right now. Look again in a minute.')
+  const { organisations: _organisations, ...summary } = outcome.result
+  await writeTransaction(tx => recordAudit(tx, { organisationId: caller.organisation.id, actorUserId: caller.user.id, action: 'digest.sent_now', targetType: 'organisation', targetId: caller.organisation.id, detail: { ...summary } }))
+  return summary
+})
