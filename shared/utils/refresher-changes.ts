@@ -3,7 +3,7 @@
 // Built on diffBreakdowns (lineage ids), so the lines match the compare page and the refresher's focus.
 import type { BreakdownContent } from '../schemas/breakdown'
 import { diffBreakdowns, type DiffEntry } from './breakdown-diff'
-import { changedElementIds } from './refresher'
+import { changedElementIds, focusContent } from './refresher'
 
 export interface ChangeLine {
   id: string
@@ -78,14 +78,15 @@ export function changeLines(older: BreakdownContent, newer: BreakdownContent): C
     .map(e => ({ id: e.id, level: e.level, status: e.status, words: lineWords(e), taught: taught.has(e.id) }))
 }
 
-/** Counts of a refresher's focus in words: "2 steps and 1 key point". */
+/**
+ * What a refresher works on, counted over focusContent (what the runner shows): "2 steps and 2 key
+ * points". A step holding a new key point is presented too, and a changed step brings its key points.
+ */
 export function focusWords(content: BreakdownContent, focus: readonly string[]): string {
-  const wanted = new Set(focus)
-  const steps = content.units.flatMap(u => u.steps)
-  const stepCount = steps.filter(s => wanted.has(s.id)).length
-  const kpCount = steps.flatMap(s => s.keyPoints).filter(k => wanted.has(k.id)).length
+  const steps = focusContent(content, focus).units.flatMap(u => u.steps)
+  const kpCount = steps.reduce((n, s) => n + s.keyPoints.length, 0)
   const parts: string[] = []
-  if (stepCount) parts.push(`${stepCount} step${stepCount === 1 ? '' : 's'}`)
+  if (steps.length) parts.push(`${steps.length} step${steps.length === 1 ? '' : 's'}`)
   if (kpCount) parts.push(`${kpCount} key point${kpCount === 1 ? '' : 's'}`)
   return parts.length ? parts.join(' and ') : 'nothing to teach again'
 }

@@ -33,10 +33,13 @@ async function setUp(label: string) {
   const learnerId = await rosterLearner(coach.client, 'Ilse Brannagh')
   const lessonId = randomUUID()
   const deviceId = randomUUID()
+  // Taught three days ago (so the page says a real date).
+  const startedAt = Date.now() - 3 * 86_400_000
+  const signedOffAt = startedAt + 3_600_000
   const pushed = await coach.client.post('/api/sync', {
     deviceId,
-    lessons: [{ id: lessonId, coachUserId: coach.userId, learnerId, jobId: v1.jobId, versionId: v1.versionId, place: 'Slicer 2', startedAt: 1_000, updatedAt: 50_000, decision: 'ready', signedOffAt: 50_000 }],
-    events: cleanTryout(lessonId, deviceId, v1.content),
+    lessons: [{ id: lessonId, coachUserId: coach.userId, learnerId, jobId: v1.jobId, versionId: v1.versionId, place: 'Slicer 2', startedAt, updatedAt: signedOffAt, decision: 'ready', signedOffAt }],
+    events: cleanTryout(lessonId, deviceId, v1.content, 1, startedAt),
     checks: [],
   })
   if (pushed.status !== 200 || pushed.body.rejected.length) throw new Error(`sync: ${pushed.status} ${pushed.text}`)
@@ -89,9 +92,10 @@ async function axeViolations(page: Page, include?: string) {
 const shot = (v: Viewport, name: string) => `/tmp/refresher-${v.width}x${v.height}-${name}.png`
 
 // Targets: 48 px in the full-screen runner, 44 px on pages with the site's header (DEVELOPERS.md, UI).
-async function expectScreen(page: Page, viewport: Viewport, name: string, options: { include?: string, minTarget?: number } = {}) {
-  const { include, minTarget = 48 } = options
-  await page.screenshot({ path: shot(viewport, name), fullPage: true })
+async function expectScreen(page: Page, viewport: Viewport, name: string, options: { include?: string, minTarget?: number, fullPage?: boolean } = {}) {
+  const { include, minTarget = 48, fullPage = false } = options
+  // Full page only where nothing is sticky: a sticky bar is drawn mid-page in a full-page picture.
+  await page.screenshot({ path: shot(viewport, name), fullPage })
   expect(await axeViolations(page), `axe on ${name}`).toEqual([])
   if (include) expect(await axeViolations(page, include), `axe on ${name} (${include})`).toEqual([])
   const { problems } = await smallTargets(page, minTarget)
@@ -156,7 +160,7 @@ describe.each(TABLET_VIEWPORTS)('refresher at $name', (viewport) => {
       ])
       await section.scrollIntoViewIfNeeded()
       await page.screenshot({ path: shot(viewport, '1-job-section'), clip: (await section.boundingBox())! })
-      await expectScreen(page, viewport, '1-job-page', { include: '[data-testid="retraining"]', minTarget: 44 })
+      await expectScreen(page, viewport, '1-job-page', { include: '[data-testid="retraining"]', minTarget: 44, fullPage: true })
 
       // The network goes; the refresher still starts, from what the tablet holds.
       await context.setOffline(true)
@@ -165,7 +169,7 @@ describe.each(TABLET_VIEWPORTS)('refresher at $name', (viewport) => {
       const choice = page.getByTestId('refresher-choice')
       await expect.poll(() => choice.isVisible()).toBe(true)
       expect(await page.getByTestId('kind-refresher').isChecked()).toBe(true)
-      expect(await choice.innerText()).toContain('Presents and tries out 1 step and 1 key point')
+      expect(await choice.innerText()).toContain('Presents and tries out 2 steps and 2 key points')
       await expectScreen(page, viewport, '2-start', { minTarget: 44 })
       await page.getByRole('button', { name: 'Start the refresher' }).click()
       await page.waitForURL(url => /^\/lessons\/[0-9a-f-]{36}$/.test(url.pathname))
@@ -174,6 +178,11 @@ describe.each(TABLET_VIEWPORTS)('refresher at $name', (viewport) => {
 
       // The runner says plainly what it is, on every stage.
       expect(await page.getByTestId('refresher-banner').innerText()).toBe('Refresher: only what changed in version 2')
+      // Prepare: what changed, to tell the learner first (from the tablet's copy, offline).
+      await expect.poll(() => page.getByTestId('refresher-changes').locator('li').allInnerTexts()).toEqual([
+        'Step 2 reworded: “Swing the blade guard fully open”',
+        'New safety key point on step 3: “Cut-resistant gloves on both hands”',
+      ])
       await expectScreen(page, viewport, '3-prepare')
       await page.locator('[data-action="to-present"]').click()
       await expect.poll(() => cursorOf(page)).toMatchObject({ stage: 'present', pass: '' })

@@ -157,9 +157,11 @@ describe('changeLines', () => {
 })
 
 describe('focusWords', () => {
-  it('counts steps and key points of the focus', () => {
+  it('counts the steps and key points the runner will show (a focused step brings its key points, a focused key point its step)', () => {
     const v = slicer()
-    expect(focusWords(v, [steps(v)[0]!.id, steps(v)[1]!.keyPoints[0]!.id, steps(v)[2]!.keyPoints[0]!.id])).toBe('1 step and 2 key points')
+    expect(focusWords(v, [steps(v)[3]!.id])).toBe('1 step')
+    expect(focusWords(v, [steps(v)[0]!.id])).toBe('1 step and 1 key point')
+    expect(focusWords(v, [steps(v)[0]!.id, steps(v)[1]!.keyPoints[0]!.id, steps(v)[2]!.keyPoints[0]!.id])).toBe('3 steps and 3 key points')
     expect(focusWords(v, [])).toBe('nothing to teach again')
   })
 })
