@@ -51,6 +51,9 @@ export default defineNuxtConfig({
     mailCapturePage: false,
     appUrl: 'http://localhost:3000',
     bodyLimitBytes: 262144,
+    // The daily reminder digest (DIGEST_ENABLED, DIGEST_TIME also work; see README).
+    digestEnabled: true,
+    digestTime: '06:00',
     session: {
       name: 'fourfold-session',
       password: '',
@@ -73,6 +76,9 @@ export default defineNuxtConfig({
   compatibilityDate: '2026-11-01',
   nitro: {
     experimental: { tasks: true },
+    // A tick, not the send time: the digest task sends from DIGEST_TIME (run-time setting, 06:00 by
+    // default) and later ticks retry failed sends; see server/tasks/reminders/digest.ts.
+    scheduledTasks: { '*/15 * * * *': ['reminders:digest'] },
     hooks: {
       // Ship the committed migrations beside the built server so it can migrate itself.
       compiled(nitro) {
