@@ -30,6 +30,8 @@ export interface DigestRunSummary {
   nothingToSay: number
   /** coaches and admins who turned the digest off */
   turnedOff: number
+  /** organisations whose digests could not be worked out (logged; the next run tries again) */
+  organisationErrors: number
 }
 
 /** How long the scheduled run's lease lasts before another instance may take over (renewed while it runs). */
@@ -157,31 +159,42 @@ export async function runDigests(options: { organisationIds?: string[], now?: nu
   const orgs = options.organisationIds
     ? await db.select({ id: organisations.id, name: organisations.name }).from(organisations).where(inArray(organisations.id, options.organisationIds))
     : await db.select({ id: organisations.id, name: organisations.name }).from(organisations)
-  const summary: DigestRunSummary = { organisations: orgs.length, sent: 0, failed: 0, alreadySent: 0, nothingToSay: 0, turnedOff: 0 }
+  const summary: DigestRunSummary = { organisations: orgs.length, sent: 0, failed: 0, alreadySent: 0, nothingToSay: 0, turnedOff: 0, organisationErrors: 0 }
 
+  // One organisation's trouble (a failed read) must not keep the others' digests back.
   for (const org of orgs) {
-    const members = await digestMembers(db, org.id)
-    summary.turnedOff += members.filter(m => !m.digestEmails).length
-    const wanting = members.filter(m => m.digestEmails)
-    const done = new Set((await db.select({ userId: digestSends.userId }).from(digestSends)
-      .where(and(eq(digestSends.organisationId, org.id), eq(digestSends.day, day)))).map(r => r.userId))
-    const pending = new Set(wanting.filter(m => !done.has(m.userId)).map(m => m.userId))
-    summary.alreadySent += wanting.length - pending.size
-    // Every 15 minutes after the digest time most organisations are done: no reading then.
-    if (!pending.size) continue
-
-    const facts = await digestFacts(db, org.id, now)
-    const digests = composeDigests(members, facts.checks, facts.late).filter(d => pending.has(d.member.userId))
-    summary.nothingToSay += pending.size - digests.length
-    for (const digest of digests) {
-      const claimId = await claimDigest(db, org.id, digest.member.userId, day)
-      if (!claimId) {
-        summary.alreadySent += 1
-        continue
-      }
-      if (await sendClaimed(db, claimId, digest, org.name, now)) summary.sent += 1
-      else summary.failed += 1
+    try {
+      await runOrganisationDigests(db, org, day, now, summary)
+    }
+    catch (error) {
+      summary.organisationErrors += 1
+      console.error(`[fourfold] the digests of organisation ${org.id} could not be worked out; the next run tries again:`, error)
     }
   }
   return summary
+}
+
+async function runOrganisationDigests(db: Db, org: { id: string, name: string }, day: string, now: number, summary: DigestRunSummary) {
+  const members = await digestMembers(db, org.id)
+  summary.turnedOff += members.filter(m => !m.digestEmails).length
+  const wanting = members.filter(m => m.digestEmails)
+  const done = new Set((await db.select({ userId: digestSends.userId }).from(digestSends)
+    .where(and(eq(digestSends.organisationId, org.id), eq(digestSends.day, day)))).map(r => r.userId))
+  const pending = new Set(wanting.filter(m => !done.has(m.userId)).map(m => m.userId))
+  summary.alreadySent += wanting.length - pending.size
+  // Every 15 minutes after the digest time most organisations are done: no reading then.
+  if (!pending.size) return
+
+  const facts = await digestFacts(db, org.id, now)
+  const digests = composeDigests(members, facts.checks, facts.late).filter(d => pending.has(d.member.userId))
+  summary.nothingToSay += pending.size - digests.length
+  for (const digest of digests) {
+    const claimId = await claimDigest(db, org.id, digest.member.userId, day)
+    if (!claimId) {
+      summary.alreadySent += 1
+      continue
+    }
+    if (await sendClaimed(db, claimId, digest, org.name, now)) summary.sent += 1
+    else summary.failed += 1
+  }
 }

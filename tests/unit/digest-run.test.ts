@@ -28,6 +28,7 @@ let sent: OutgoingMail[] = []
 let refuse = new Set<string>()
 
 const orgId = randomUUID()
+const otherOrg = randomUUID()
 const people = { admin: randomUUID(), anna: randomUUID(), ben: randomUUID() }
 const now = new Date(2026, 11, 2, 6, 0).getTime()
 
@@ -68,6 +69,17 @@ beforeAll(async () => {
     const signedOffAt = new Date(now - 3 * DAY)
     await db.insert(schema.lessons).values({ id: randomUUID(), organisationId: orgId, coachUserId: coach, learnerId, jobId, versionId, startedAt: signedOffAt, signedOffAt, decision: 'ready', clientUpdatedAt: signedOffAt.getTime(), updatedByDevice: randomUUID() })
   }
+
+  // A second organisation: one coach, one plan item past its target date.
+  const coachId = randomUUID()
+  const learnerId = randomUUID()
+  const otherJob = randomUUID()
+  await db.insert(schema.organisations).values({ id: otherOrg, name: 'Second Bakehouse' })
+  await db.insert(schema.users).values({ id: coachId, email: 'wren@second.example', name: 'Wren', passwordHash: 'x', passwordChangedAt: at })
+  await db.insert(schema.memberships).values({ id: randomUUID(), organisationId: otherOrg, userId: coachId, role: 'coach' })
+  await db.insert(schema.jobs).values({ id: otherJob, organisationId: otherOrg, title: 'Check-weigh a tray' })
+  await db.insert(schema.learners).values({ id: learnerId, organisationId: otherOrg, name: 'Wen Harrow' })
+  await db.insert(schema.planItems).values({ id: randomUUID(), organisationId: otherOrg, learnerId, jobId: otherJob, targetDate: '2026-11-20', reason: 'turnover' })
 })
 afterAll(async () => {
   client?.close()
@@ -84,47 +96,66 @@ const to = () => sent.map(m => m.to).sort()
 describe('the digest run', () => {
   it('sends one mail per person when two runs go at the same moment with no lease between them', async () => {
     const [first, second] = await Promise.all([runDigests({ now }), runDigests({ now })])
-    expect(to()).toEqual(['anna@bakery.example', 'ben@bakery.example'])
-    expect(first.sent + second.sent).toBe(2)
+    expect(to()).toEqual(['anna@bakery.example', 'ben@bakery.example', 'wren@second.example'])
+    expect(first.sent + second.sent).toBe(3)
     // The admin taught nobody and nothing is late: nothing to say to them.
     expect(first.nothingToSay).toBe(1)
     const rows = await db.select().from(schema.digestSends)
-    expect(rows).toHaveLength(2)
+    expect(rows).toHaveLength(3)
     expect(rows.every(r => r.day === '2026-12-02' && r.sentAt > 0)).toBe(true)
   })
 
   it('sends nothing more that day, and again the next day', async () => {
     await runDigests({ now })
     sent = []
-    expect(await runDigests({ now: now + 6 * 60 * 60 * 1000 })).toMatchObject({ sent: 0, alreadySent: 2 })
+    expect(await runDigests({ now: now + 6 * 60 * 60 * 1000 })).toMatchObject({ sent: 0, alreadySent: 3 })
     expect(sent).toEqual([])
-    expect((await runDigests({ now: now + DAY })).sent).toBe(2)
+    expect((await runDigests({ now: now + DAY })).sent).toBe(3)
   })
 
   it('retries a send the mail server refused on the next run, and only that one', async () => {
     refuse.add('ben@bakery.example')
-    expect(await runDigests({ now })).toMatchObject({ sent: 1, failed: 1 })
+    expect(await runDigests({ now, organisationIds: [orgId] })).toMatchObject({ sent: 1, failed: 1 })
     expect(to()).toEqual(['anna@bakery.example'])
     refuse.clear()
-    expect(await runDigests({ now })).toMatchObject({ sent: 1, failed: 0, alreadySent: 1 })
+    expect(await runDigests({ now, organisationIds: [orgId] })).toMatchObject({ sent: 1, failed: 0, alreadySent: 1 })
     expect(to()).toEqual(['anna@bakery.example', 'ben@bakery.example'])
   })
 
   it('does not send again after a crash between the claim and the confirmation', async () => {
     // What a process that died mid-send leaves: a claim with sent_at 0.
     await db.insert(schema.digestSends).values({ id: randomUUID(), organisationId: orgId, userId: people.anna, day: '2026-12-02', sentAt: 0 })
-    expect(await runDigests({ now })).toMatchObject({ sent: 1, alreadySent: 1 })
+    expect(await runDigests({ now, organisationIds: [orgId] })).toMatchObject({ sent: 1, alreadySent: 1 })
     expect(to()).toEqual(['ben@bakery.example'])
   })
 
   it('leaves out whoever turned the digest off', async () => {
     await db.update(schema.memberships).set({ digestEmails: false }).where(eq(schema.memberships.userId, people.ben))
     try {
-      expect(await runDigests({ now })).toMatchObject({ sent: 1, turnedOff: 1 })
+      expect(await runDigests({ now, organisationIds: [orgId] })).toMatchObject({ sent: 1, turnedOff: 1 })
       expect(to()).toEqual(['anna@bakery.example'])
     }
     finally {
       await db.update(schema.memberships).set({ digestEmails: true })
+    }
+  })
+
+  it('keeps going with the other organisations when one cannot be worked out', async () => {
+    const real = trainingRows
+    const failing: typeof trainingRows = async (id, filter, at) => {
+      if (id === orgId) throw new Error('disk I/O error')
+      return real(id, filter, at)
+    }
+    Object.assign(globalThis, { trainingRows: failing })
+    try {
+      expect(await runDigests({ now })).toMatchObject({ sent: 1, organisationErrors: 1 })
+      expect(to()).toEqual(['wren@second.example'])
+      // Nothing was claimed for the organisation that failed, so the next run sends its digests.
+      Object.assign(globalThis, { trainingRows: real })
+      expect(await runDigests({ now })).toMatchObject({ sent: 2, alreadySent: 1, organisationErrors: 0 })
+    }
+    finally {
+      Object.assign(globalThis, { trainingRows: real })
     }
   })
 })

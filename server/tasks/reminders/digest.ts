@@ -14,7 +14,7 @@ export default defineTask<string | DigestRunSummary>({
     const outcome = await withLease('reminders:digest', DIGEST_LEASE_MS, () => runDigests())
     if (!outcome.ran) return { result: 'Another instance is sending the digests.' }
     const s = outcome.result
-    if (s.sent || s.failed) console.info(`[fourfold] digests: ${s.sent} sent, ${s.failed} to retry, ${s.alreadySent} already sent, ${s.nothingToSay} with nothing to say`)
+    if (s.sent || s.failed || s.organisationErrors) console.info(`[fourfold] digests: ${s.sent} sent, ${s.failed} to retry, ${s.alreadySent} already sent, ${s.nothingToSay} with nothing to say, ${s.organisationErrors} organisations to retry`)
     return { result: s }
   },
 })
