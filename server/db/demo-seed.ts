@@ -102,6 +102,7 @@ export async function seedDemo(db: AnyDb, options: { password: string, hash: (pa
   })
   await seedDemoPlan(db, organisationId, now.getTime())
   await seedDemoChecks(db, organisationId, now.getTime())
+  await seedDemoStudy(db, organisationId, now.getTime())
   return { organisationId }
 }
 
@@ -198,6 +199,71 @@ async function seedDemoChecks(db: AnyDb, organisationId: string, now: number) {
       const result = checkResult({ elements, intervalIndex: t.check.intervalIndex, finishedAt }, checkEvents, content)
       await tx.insert(schema.spotChecks).values({ id: checkId, organisationId, coachUserId: coach.id, learnerId: learner.id, jobId: version.jobId, versionId: version.id, lessonId, startedAt: new Date(finishedAt - (elements.length + 1) * 30_000), elements, note: 'Weighed three trays without a prompt.', finishedAt: new Date(finishedAt), outcome: result.outcome, intervalIndex: t.check.intervalIndex, nextIntervalIndex: result.nextIntervalIndex, nextDueAt: result.nextDueAt, clientUpdatedAt: finishedAt, updatedByDevice: deviceId })
       await tx.insert(schema.checkEvents).values(checkEvents.map(e => ({ ...e, organisationId, receivedAt: finishedAt })))
+    }
+  })
+}
+
+/**
+ * The demo learner's own training (issue 6, items 5 and 8), so learner@bakery.example has study
+ * cards and records, and their people page has a recall chart: the slicer taught on version 1
+ * (another pass first, then ready) before version 2 was published (so it asks for re-teaching),
+ * and the bag sealer taught ready with three clean spot checks up the taper (the next still to come).
+ */
+async function seedDemoStudy(db: AnyDb, organisationId: string, now: number) {
+  const DAY = 86_400_000
+  const [learner] = await db.select({ id: schema.learners.id }).from(schema.learners).innerJoin(schema.users, eq(schema.users.id, schema.learners.userId))
+    .where(and(eq(schema.learners.organisationId, organisationId), eq(schema.users.email, 'learner@bakery.example')))
+  const [coach] = await db.select({ id: schema.users.id }).from(schema.users).where(eq(schema.users.email, 'coach@bakery.example'))
+  if (!learner || !coach) return
+  const versionRows = await db.select({ id: schema.breakdownVersions.id, jobId: schema.breakdownVersions.jobId, number: schema.breakdownVersions.number, content: schema.breakdownVersions.content, title: schema.jobs.title })
+    .from(schema.breakdownVersions).innerJoin(schema.jobs, eq(schema.jobs.id, schema.breakdownVersions.jobId))
+    .where(eq(schema.breakdownVersions.organisationId, organisationId))
+  const version = (title: string, number: number) => versionRows.find(v => v.title === title && v.number === number)
+  const deviceId = randomUUID()
+  let seq = 0
+  const lessonsToSeed = [
+    { title: 'Change the slicer blade set', number: 1, daysAgo: 50, decision: 'another-pass' as const, cuedKeyPoints: 2, checks: [] as Array<{ daysAgo: number, intervalIndex: number }> },
+    { title: 'Change the slicer blade set', number: 1, daysAgo: 45, decision: 'ready' as const, cuedKeyPoints: 1, checks: [] },
+    { title: 'Thread film on the bag sealer', number: 1, daysAgo: 10, decision: 'ready' as const, cuedKeyPoints: 0, checks: [{ daysAgo: 9, intervalIndex: 0 }, { daysAgo: 7, intervalIndex: 1 }, { daysAgo: 3, intervalIndex: 2 }] },
+  ]
+  await db.transaction(async (tx) => {
+    for (const l of lessonsToSeed) {
+      const v = version(l.title, l.number)
+      if (!v) continue
+      const content = v.content as BreakdownContent
+      const steps = content.units.flatMap(u => u.steps)
+      const keyPoints = steps.flatMap(st => st.keyPoints)
+      const lessonId = randomUUID()
+      const signedOffAt = now - l.daysAgo * DAY
+      const startedAt = signedOffAt - 45 * 60_000
+      const ev = (pass: string, kind: LessonEvent['kind'], elementId: string | null, value: string | null): LessonEvent => {
+        seq += 1
+        return { id: randomUUID(), lessonId, pass, elementId, kind, value, clientTime: startedAt + 15 * 60_000 + seq * 5_000, deviceId, seq }
+      }
+      const events = [
+        ...steps.map(st => ev('T1-1', 'mark', st.id, 'unaided')),
+        ev('T2-1', 'order-all', null, null),
+        ...steps.map(st => ev('T2-1', 'mark', st.id, 'unaided')),
+        // The first key points needed a cue in T3 (an earlier lesson needed more of them).
+        ...keyPoints.map((k, i) => ev('T3-1', 'mark', k.id, i < l.cuedKeyPoints ? 'cued' : 'unaided')),
+        ...keyPoints.filter(k => k.reason.trim()).map(k => ev('T4-1', 'mark', k.id, 'unaided')),
+      ]
+      await tx.insert(schema.lessons).values({ id: lessonId, organisationId, coachUserId: coach.id, learnerId: learner.id, jobId: v.jobId, versionId: v.id, place: 'Line 1', startedAt: new Date(startedAt), helper: '', decision: l.decision, signedOffAt: new Date(signedOffAt), stageSeconds: { prepare: 200, present: 800, tryout: 1300, followup: 240 }, clientUpdatedAt: signedOffAt, updatedByDevice: deviceId })
+      await tx.insert(schema.lessonEvents).values(events.map(e => ({ ...e, organisationId, receivedAt: signedOffAt })))
+      const state = replayLesson(events, content)
+      await tx.insert(schema.lessonScores).values({ lessonId, organisationId, t1: state.scores.T1, t2: state.scores.T2, t3: state.scores.T3, t4: state.scores.T4, orderScore: state.scores.order, recall: state.scores.recall, readiness: state.readiness.suggestion, represent: state.readiness.represent, eventCount: events.length, computedAt: signedOffAt })
+      for (const c of l.checks) {
+        const checkId = randomUUID()
+        const finishedAt = now - c.daysAgo * DAY
+        const elements = suggestCheckElements(content, checkId)
+        const checkEvents: CheckEvent[] = elements.map((elementId, i) => {
+          seq += 1
+          return { id: randomUUID(), checkId, elementId, kind: 'mark', value: 'unaided', clientTime: finishedAt - (elements.length - i) * 30_000, deviceId, seq }
+        })
+        const result = checkResult({ elements, intervalIndex: c.intervalIndex, finishedAt }, checkEvents, content)
+        await tx.insert(schema.spotChecks).values({ id: checkId, organisationId, coachUserId: coach.id, learnerId: learner.id, jobId: v.jobId, versionId: v.id, lessonId, startedAt: new Date(finishedAt - (elements.length + 1) * 30_000), elements, note: '', finishedAt: new Date(finishedAt), outcome: result.outcome, intervalIndex: c.intervalIndex, nextIntervalIndex: result.nextIntervalIndex, nextDueAt: result.nextDueAt, clientUpdatedAt: finishedAt, updatedByDevice: deviceId })
+        await tx.insert(schema.checkEvents).values(checkEvents.map(e => ({ ...e, organisationId, receivedAt: finishedAt })))
+      }
     }
   })
 }
