@@ -104,7 +104,7 @@ export function outcomeWords(result: Pick<CheckResult, 'outcome' | 'nextInterval
       ? `a safety key point was missed (${safety.map(e => e.keyPointText ?? e.text).join('; ')})`
       : `${result.missed.length} elements were missed`
     const unmarked = result.unmarked.length ? ` ${result.unmarked.length} left unmarked counted as missed.` : ''
-    return { title: 'Re-teach this job', why: `Re-teach because ${because}.${unmarked} Once the job is re-taught, checks start again from the first gap (${gap}).` }
+    return { title: 'Re-teach this job', why: `Re-teach because ${because}.${unmarked}` }
   }
   const notes = [result.cued.length ? `${result.cued.length} needed a prompt` : '', result.missed.length ? `${result.missed.length} missed` : ''].filter(Boolean).join(', ')
   return { title: 'Stay on the same gap', why: `Not clean (${notes || 'not every element unaided'}), but no safety key point was missed and fewer than two misses, so the gap stays at ${gap}.` }
