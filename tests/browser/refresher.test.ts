@@ -147,6 +147,11 @@ describe.each(TABLET_VIEWPORTS)('refresher at $name', (viewport) => {
       await page.evaluate(() => navigator.serviceWorker.ready)
       await expect.poll(() => page.evaluate(() => Boolean(navigator.serviceWorker.controller))).toBe(true)
 
+      // Straight after publishing, the version page says how many are flagged (the editor adds these to the address).
+      await visit(page, `/versions/${setup.v2Id}?published=1&flagged=1`)
+      expect(await page.getByTestId('published-flagged').innerText()).toBe('Published v2. 1 person trained on an older version is now flagged for a refresher.')
+      await expectScreen(page, viewport, '0-published', { minTarget: 44 })
+
       // The job page: who was trained on an older version, and what changed.
       await visit(page, `/jobs/${setup.jobId}`)
       const section = page.getByTestId('retraining')
