@@ -5,6 +5,7 @@
 // their marks travel in the same pushes (a check mark names checkId instead of lessonId).
 import { SYNC_LIMITS } from '#shared/utils/sync-limits'
 import { localDb, type LocalCheck, type LocalCheckEvent, type LocalEvent, type LocalLesson } from './localdb'
+import { observedLessonIds } from './observed-lessons'
 import type { CheckServerResult, SyncedCheck, SyncedCheckEvent } from './local-checks'
 
 export interface ServerScore { t1: number | null, t2: number | null, t3: number | null, t4: number | null, order: number | null, recall: number | null, readiness: 'ready' | 'another-pass' }
@@ -122,7 +123,8 @@ export function planPushes(deviceId: string, lessons: readonly LocalLesson[], ev
 export async function outbox(organisationId: string) {
   const db = localDb()
   const lessons = (await db.lessons.where('organisationId').equals(organisationId).toArray()) as SyncedLesson[]
-  const ids = new Set(lessons.map(l => l.id))
+  // A second coach's marks of a lesson recorded on another tablet go out too (utils/observed-lessons.ts).
+  const ids = new Set([...lessons.map(l => l.id), ...await observedLessonIds(organisationId)])
   const events = ((await db.events.where('synced').equals(0).toArray()) as SyncedEvent[]).filter(e => ids.has(e.lessonId))
   const checks = ((await db.checks.where('organisationId').equals(organisationId).toArray()) as SyncedCheck[]).filter(c => !c.fromServer)
   const checkIds = new Set(checks.map(c => c.id))

@@ -19,7 +19,10 @@ export function recordsDayRange(filter: Pick<RecordsFilter, 'from' | 'to' | 'tzO
 
 interface Built { sql: string, args: InValue[] }
 
-/** The union of lessons and checks, each arm narrowed by the filters it can apply itself. */
+/**
+ * The union of lessons and checks as narrow rows (what filtering and sorting need), each arm
+ * narrowed by the filters it can apply itself; the version filter by the organisation's version ids.
+ */
 function unionOf(organisationId: string, filter: RecordsFilter): Built {
   const { start, end } = recordsDayRange(filter)
   const arm = (table: 'l' | 'c') => {
@@ -32,7 +35,13 @@ function unionOf(organisationId: string, filter: RecordsFilter): Built {
       ['started_at < ?', end],
     ]
     const used = conditions.filter(([, value]) => value !== undefined && value !== null)
-    return { where: used.map(([text]) => `${table}.${text}`).join(' and '), args: used.map(([, value]) => value as InValue) }
+    const where = used.map(([text]) => `${table}.${text}`)
+    const args = used.map(([, value]) => value as InValue)
+    if (filter.version !== undefined) {
+      where.push(`${table}.version_id in (select id from breakdown_versions where organisation_id = ? and number = ?)`)
+      args.push(organisationId, filter.version)
+    }
+    return { where: where.join(' and '), args }
   }
   const parts: string[] = []
   const args: InValue[] = []
@@ -43,54 +52,29 @@ function unionOf(organisationId: string, filter: RecordsFilter): Built {
     const a = arm('l')
     // A lesson is "open" until it is signed off with a decision.
     const outcomeSql = 'case when l.signed_off_at is null or l.decision is null then \'open\' else l.decision end'
-    parts.push(`select 'lesson' as kind, l.id, l.started_at as date, l.signed_off_at as finished_at, l.learner_id, l.job_id, l.version_id, l.coach_user_id,
-        ${outcomeSql} as outcome, s.readiness, s.recall,
-        json_extract(l.acknowledgement, '$.name') as ack_name, json_extract(l.acknowledgement, '$.at') as ack_at, l.place, null as elements
-      from lessons l left join lesson_scores s on s.lesson_id = l.id and s.organisation_id = l.organisation_id
-      where ${a.where}${outcome ? ` and ${outcomeSql} = ?` : ''}`)
+    parts.push(`select 'lesson' as kind, l.id, l.started_at as date, l.signed_off_at as finished_at, l.learner_id, l.job_id, l.version_id, l.coach_user_id, ${outcomeSql} as outcome
+      from lessons l where ${a.where}${outcome ? ` and ${outcomeSql} = ?` : ''}`)
     args.push(...a.args, ...(outcome ? [outcome] : []))
   }
   if (filter.kind !== 'lesson' && (!outcome || checkOutcomes.includes(outcome))) {
     const a = arm('c')
     const outcomeSql = 'case when c.finished_at is null or c.outcome is null then \'open\' else c.outcome end'
-    parts.push(`select 'check' as kind, c.id, c.started_at as date, c.finished_at as finished_at, c.learner_id, c.job_id, c.version_id, c.coach_user_id,
-        ${outcomeSql} as outcome, null as readiness, null as recall, null as ack_name, null as ack_at, '' as place, json_array_length(c.elements) as elements
-      from spot_checks c
-      where ${a.where}${outcome ? ` and ${outcomeSql} = ?` : ''}`)
+    parts.push(`select 'check' as kind, c.id, c.started_at as date, c.finished_at as finished_at, c.learner_id, c.job_id, c.version_id, c.coach_user_id, ${outcomeSql} as outcome
+      from spot_checks c where ${a.where}${outcome ? ` and ${outcomeSql} = ?` : ''}`)
     args.push(...a.args, ...(outcome ? [outcome] : []))
   }
   // Lessons only with a check outcome (or the other way round): an empty list, still one statement.
-  if (!parts.length) parts.push('select null as kind, null as id, null as date, null as finished_at, null as learner_id, null as job_id, null as version_id, null as coach_user_id, null as outcome, null as readiness, null as recall, null as ack_name, null as ack_at, null as place, null as elements where 0')
+  if (!parts.length) parts.push('select null as kind, null as id, null as date, null as finished_at, null as learner_id, null as job_id, null as version_id, null as coach_user_id, null as outcome where 0')
   return { sql: parts.join('\nunion all\n'), args }
 }
 
+// Sorting happens on the narrow rows, before any join: the person's and job's names are looked up
+// by primary key for the sort key only. `r` is the narrow row, in the page query and in the outer one.
+const NAME_OF = { person: '(select name from learners where id = r.learner_id)', job: '(select title from jobs where id = r.job_id)' }
 const ORDER: Record<RecordsFilter['sort'], (dir: 'asc' | 'desc') => string> = {
   date: dir => `r.date ${dir}, r.id ${dir}`,
-  person: dir => `le.name collate nocase ${dir}, le.id ${dir}, r.date desc, r.id desc`,
-  job: dir => `j.title collate nocase ${dir}, j.id ${dir}, r.date desc, r.id desc`,
-}
-
-/** The joined, filtered records; the caller adds order, limit or count. */
-function joined(organisationId: string, filter: RecordsFilter): Built {
-  const union = unionOf(organisationId, filter)
-  const args = [...union.args]
-  // The joins repeat the organisation so a row can never pick up another organisation's name.
-  let where = 'le.organisation_id = ? and j.organisation_id = ? and v.organisation_id = ?'
-  args.push(organisationId, organisationId, organisationId)
-  if (filter.version !== undefined) {
-    where += ' and v.number = ?'
-    args.push(filter.version)
-  }
-  return {
-    sql: `from (${union.sql}) r
-      join learners le on le.id = r.learner_id
-      join jobs j on j.id = r.job_id
-      join breakdown_versions v on v.id = r.version_id
-      left join users u on u.id = r.coach_user_id
-      left join work_areas wa on wa.id = le.work_area_id
-      where ${where}`,
-    args,
-  }
+  person: dir => `${NAME_OF.person} collate nocase ${dir}, r.learner_id ${dir}, r.date desc, r.id desc`,
+  job: dir => `${NAME_OF.job} collate nocase ${dir}, r.job_id ${dir}, r.date desc, r.id desc`,
 }
 
 type Runner = { execute: (stmt: { sql: string, args: InValue[] }) => Promise<{ rows: ArrayLike<Record<string, unknown>> }> }
@@ -122,26 +106,64 @@ function toRow(r: Record<string, unknown>): RecordRow {
   }
 }
 
-const COLUMNS = `r.kind, r.id, r.date, r.finished_at, r.learner_id, r.job_id, r.version_id, r.coach_user_id, r.outcome, r.readiness, r.recall,
-  r.ack_name, r.ack_at, r.place, r.elements, le.name as learner_name, le.reference as learner_reference, wa.name as work_area_name,
-  j.title as job_title, v.number as version_number, u.name as coach_name`
-
-/** One page of records and the number matching the filters. */
-export async function recordsPage(client: Runner, organisationId: string, filter: RecordsFilter, page: { limit: number, offset: number }) {
-  const base = joined(organisationId, filter)
+/**
+ * The records of one page (or of the whole export): the narrow rows are filtered, sorted and cut
+ * first, then only those rows are joined for names, scores and acknowledgements. The joins repeat
+ * the organisation, so a row can never pick up another organisation's name. CROSS JOIN keeps the
+ * page as the outer loop (SQLite never reorders it): with plain joins the planner walked the
+ * organisation's learners × jobs × versions and probed the records through an automatic index
+ * (about 400 ms instead of a few on the bench organisation, npm run bench:plan).
+ */
+function pageQuery(organisationId: string, filter: RecordsFilter, limit: number, offset: number): Built {
+  const union = unionOf(organisationId, filter)
   const dir = filter.dir ?? (filter.sort === 'date' ? 'desc' : 'asc')
-  const [list, count] = await Promise.all([
-    client.execute({ sql: `select ${COLUMNS} ${base.sql} order by ${ORDER[filter.sort](dir)} limit ? offset ?`, args: [...base.args, page.limit, page.offset] }),
-    client.execute({ sql: `select count(*) as n ${base.sql}`, args: base.args }),
-  ])
-  return { total: Number(count.rows[0]?.n ?? 0), limit: page.limit, offset: page.offset, rows: Array.from(list.rows, toRow) }
+  const order = ORDER[filter.sort](dir)
+  // The page comes back as one JSON text (json_group_array) rather than a row object per row, which
+  // the client builds at several times the cost; `pos` keeps the order, since SQLite does not
+  // promise that an aggregate keeps its subquery's order.
+  return {
+    sql: `select json_group_array(json_array(${JSON_COLUMNS.map(([, expr]) => expr).join(', ')})) as j
+      from (select r.*, row_number() over (order by ${order}) as pos from (select r.* from (${union.sql}) r order by ${order} limit ? offset ?) r) r
+      cross join learners le on le.id = r.learner_id
+      cross join jobs j on j.id = r.job_id
+      cross join breakdown_versions v on v.id = r.version_id
+      left join users u on u.id = r.coach_user_id
+      left join work_areas wa on wa.id = le.work_area_id
+      left join lessons l on r.kind = 'lesson' and l.id = r.id
+      left join lesson_scores s on r.kind = 'lesson' and s.lesson_id = r.id
+      left join spot_checks c on r.kind = 'check' and c.id = r.id
+      where le.organisation_id = ? and j.organisation_id = ? and v.organisation_id = ?`,
+    args: [...union.args, limit, offset, organisationId, organisationId, organisationId],
+  }
+}
+
+const JSON_COLUMNS: Array<[string, string]> = [
+  ['pos', 'r.pos'], ['kind', 'r.kind'], ['id', 'r.id'], ['date', 'r.date'], ['finished_at', 'r.finished_at'], ['learner_id', 'r.learner_id'],
+  ['job_id', 'r.job_id'], ['version_id', 'r.version_id'], ['coach_user_id', 'r.coach_user_id'], ['outcome', 'r.outcome'],
+  ['learner_name', 'le.name'], ['learner_reference', 'le.reference'], ['work_area_name', 'wa.name'], ['job_title', 'j.title'],
+  ['version_number', 'v.number'], ['coach_name', 'u.name'], ['readiness', 's.readiness'], ['recall', 's.recall'],
+  ['ack_name', 'json_extract(l.acknowledgement, \'$.name\')'], ['ack_at', 'json_extract(l.acknowledgement, \'$.at\')'],
+  ['place', 'coalesce(l.place, \'\')'], ['elements', 'case when r.kind = \'check\' then json_array_length(c.elements) end'],
+]
+
+function rowsOf(result: { rows: ArrayLike<Record<string, unknown>> }): RecordRow[] {
+  const list = JSON.parse(String(result.rows[0]?.j ?? '[]')) as unknown[][]
+  return list
+    .map(values => Object.fromEntries(JSON_COLUMNS.map(([name], i) => [name, values[i]])))
+    .sort((a, b) => Number(a.pos) - Number(b.pos))
+    .map(toRow)
+}
+
+/** One page of records and the number matching the filters, in one statement. */
+export async function recordsPage(client: Runner, organisationId: string, filter: RecordsFilter, page: { limit: number, offset: number }) {
+  const union = unionOf(organisationId, filter)
+  const list = pageQuery(organisationId, filter, page.limit, page.offset)
+  const result = await client.execute({ sql: `select (select count(*) from (${union.sql})) as n, (${list.sql}) as j`, args: [...union.args, ...list.args] })
+  return { total: Number(result.rows[0]?.n ?? 0), limit: page.limit, offset: page.offset, rows: rowsOf(result) }
 }
 
 /** Every record matching the filters, in the chosen order, at most `max` (the CSV export). */
 export async function allRecords(client: Runner, organisationId: string, filter: RecordsFilter, max: number) {
-  const base = joined(organisationId, filter)
-  const dir = filter.dir ?? (filter.sort === 'date' ? 'desc' : 'asc')
-  const list = await client.execute({ sql: `select ${COLUMNS} ${base.sql} order by ${ORDER[filter.sort](dir)} limit ?`, args: [...base.args, max + 1] })
-  const rows = Array.from(list.rows, toRow)
+  const rows = rowsOf(await client.execute(pageQuery(organisationId, filter, max + 1, 0)))
   return { rows: rows.slice(0, max), truncated: rows.length > max }
 }

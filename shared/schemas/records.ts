@@ -58,6 +58,9 @@ export const recordsPageSchema = z.object({
 
 export type RecordsFilter = z.output<typeof recordsFilterSchema>
 
+/** The filters as the Records page's fields hold them ('' = no filter). */
+export interface RecordsFilterValues { learnerId: string, jobId: string, coachUserId: string, version: string, kind: string, outcome: string, from: string, to: string }
+
 /** One row of GET /api/records (times in ms since the epoch, UTC). */
 export interface RecordRow {
   kind: RecordKind

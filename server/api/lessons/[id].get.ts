@@ -2,6 +2,7 @@
 import { and, asc, eq } from 'drizzle-orm'
 import { breakdownVersions, jobs, learners, lessonEvents, lessonScores, lessons, users } from '../../db/schema'
 import { idParamsSchema } from '../../../shared/schemas/common'
+import { focusContent } from '../../../shared/utils/refresher'
 
 export default defineEventHandler(async (event) => {
   const { id } = await paramsValid(event, idParamsSchema)
@@ -42,7 +43,8 @@ export default defineEventHandler(async (event) => {
     job: { purpose: row.jobPurpose, toolsAndMaterials: row.toolsAndMaterials, workplaceArrangement: row.workplaceArrangement },
     versionNumber: row.versionNumber,
     coachName: row.coachName,
-    content: row.content,
+    // A refresher worked on (and was scored on) only its focused elements: the review shows those.
+    content: focusContent(row.content, row.lesson.focus),
     events: marks,
     score: score ? { t1: score.t1, t2: score.t2, t3: score.t3, t4: score.t4, order: score.orderScore, recall: score.recall, readiness: score.readiness, represent: score.represent, computedAt: score.computedAt } : null,
   }
