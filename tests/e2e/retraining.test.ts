@@ -125,6 +125,9 @@ describe('retraining after a new version', () => {
     const review = await admin.client.get(`/api/lessons/${refresher.lessonId}`)
     expect(review.status).toBe(200)
     expect(review.body.score.recall).toBe(100)
+    // The review reads the refresher's own content: the focused steps and key points only.
+    expect(review.body.focus).toEqual(focus)
+    expect(review.body.content).toEqual(focused)
   })
 
   it('clears the flag once the refresher on v2 is signed off ready', async () => {
