@@ -114,6 +114,20 @@ async function signIn(page: Page, email: string) {
   await waitForHydration(page)
 }
 
+/** A string only chart.js's registry carries (its error for an unregistered chart part). */
+const CHART_JS_MARK = 'is not a registered'
+
+/** The scripts this page has loaded whose text holds `mark`. */
+async function scriptsWith(page: Page, mark: string): Promise<string[]> {
+  const urls = await page.evaluate(() => performance.getEntriesByType('resource').map(e => e.name).filter(n => new URL(n).pathname.endsWith('.js')))
+  const found: string[] = []
+  for (const url of new Set(urls)) {
+    const res = await page.request.get(url)
+    if ((await res.text()).includes(mark)) found.push(new URL(url).pathname)
+  }
+  return found
+}
+
 /** Whether every study photo on screen has been drawn from real image data. */
 const photosDrawn = (page: Page) => page.locator('[data-testid="study-photo"]').evaluateAll(imgs => imgs.map(i => (i as HTMLImageElement).complete && (i as HTMLImageElement).naturalWidth > 0 && (i as HTMLImageElement).src.startsWith('blob:')))
 
@@ -156,6 +170,14 @@ describe.each(TABLET_VIEWPORTS)('people and study at $name', (viewport) => {
       expect(await page.getByTestId('check-history').innerText()).toContain('Re-teach needed')
       expect(await page.getByTestId('lesson-history').getByRole('link', { name: /^Review/ }).count()).toBe(4)
       await expectScreen(page, viewport, 'people-learner')
+
+      // chart.js is loaded by this page only: the lesson runner's start screen and the roster never load it.
+      const chartChunks = await scriptsWith(page, CHART_JS_MARK)
+      expect(chartChunks).toHaveLength(1)
+      for (const path of ['/lessons/new', '/people']) {
+        await visit(page, path)
+        expect(await scriptsWith(page, CHART_JS_MARK), path).toEqual([])
+      }
       expect(pageErrors).toEqual([])
     }
     finally {
