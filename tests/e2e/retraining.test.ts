@@ -27,10 +27,7 @@ beforeAll(async () => {
   learnerId = await rosterLearner(coach.client, 'Ilse Brannagh')
   otherLearnerId = await rosterLearner(coach.client, 'Tomas Quillfeather')
 }, 120_000)
-afterAll(() => {
-  if (process.env.RETRAINING_LOG) console.log(server?.output())
-  return server?.stop()
-})
+afterAll(() => server?.stop())
 
 /** A lesson pushed from one tablet: a clean try-out of `content`, signed off with `decision`. */
 async function pushLesson(versionId: string, content: BreakdownContent, options: { learner?: string, focus?: string[] | null, decision?: 'ready' | 'another-pass' | null, signedOff?: boolean } = {}) {
