@@ -11,7 +11,8 @@ export default defineEventHandler(async (event) => {
   const query = queryValid(event, planQuerySchema)
   const caller = await requireRole(event, 'admin', 'coach', 'auditor')
   const now = Date.now()
-  const matrix = await planMatrix(caller.organisation.id, query, now)
+  // Every matching learner: the export is not paged.
+  const matrix = await planMatrix(caller.organisation.id, { ...query, offset: 0, limit: undefined }, now)
   const learners = new Map(matrix.learners.map(l => [l.id, l]))
   const jobs = new Map(matrix.jobs.map(j => [j.id, j]))
   const order = new Map(matrix.learners.map((l, i) => [l.id, i]))

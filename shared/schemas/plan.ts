@@ -28,11 +28,19 @@ export const planCellParamsSchema = z.object({
   jobId: z.uuid('That job id is not valid.'),
 })
 
+/** Learners per page of the matrix: a tablet shows 50 rows × all jobs comfortably; 500 would be 20,000 cells. */
+export const PLAN_PAGE_SIZE = 50
+export const PLAN_PAGE_MAX = 500
+
 /** Filters of GET /api/plan and /api/plan.csv; all optional, all applied on the server. */
 export const planQuerySchema = z.object({
   workAreaId: z.union([z.uuid(), z.literal('none')], { error: 'Choose a work area from the list.' }).optional(),
   jobId: z.uuid('Choose a job from the list.').optional(),
   status: z.enum(CELL_STATUSES, { error: 'Choose a status from the list.' }).optional(),
   q: z.string().trim().max(100, 'Keep the search under 100 characters.').optional(),
+  /** A page of learners (rows); coverage always counts everyone. The CSV export takes every row. */
+  offset: z.coerce.number({ error: 'offset is a whole number.' }).int('offset is a whole number.').min(0, 'offset is 0 or more.').max(1_000_000).default(0),
+  limit: z.coerce.number({ error: 'limit is a whole number.' }).int('limit is a whole number.').min(1, 'limit is 1 or more.').max(PLAN_PAGE_MAX, `limit is at most ${PLAN_PAGE_MAX}.`).default(PLAN_PAGE_SIZE),
 })
 export type PlanQuery = z.output<typeof planQuerySchema>
+export type PlanFilters = Omit<PlanQuery, 'offset' | 'limit'> & Partial<Pick<PlanQuery, 'offset' | 'limit'>>

@@ -35,4 +35,6 @@ export interface PlanMatrix {
   }
   /** active learners and jobs before the filters */
   totals: { learners: number, jobs: number }
+  /** this page of the learners that match the filters (matching: how many match in all) */
+  page: { offset: number, limit: number, matching: number }
 }

@@ -57,18 +57,35 @@ export function endOfDay(at: number): number {
   return d.getTime() - 1
 }
 
+/** Today as the rule needs it; work it out once for many cells at the same `now`. */
+export interface DayBounds { today: string, start: number, end: number }
+export function dayBounds(now: number): DayBounds {
+  return { today: localDay(now), start: startOfDay(now), end: endOfDay(now) }
+}
+
 /** A YYYY-MM-DD date as local midnight (ms). */
 export function dayStart(day: string): number {
   const [y, m, d] = day.split('-').map(Number)
   return new Date(y!, m! - 1, d!).getTime()
 }
 
-const SHORT = new Intl.DateTimeFormat('en-GB', { day: 'numeric', month: 'short' })
-const SHORT_WITH_YEAR = new Intl.DateTimeFormat('en-GB', { day: 'numeric', month: 'short', year: 'numeric' })
+// Month names written out rather than Intl.DateTimeFormat: the same on every runtime (ICU versions
+// differ, e.g. "Sep" or "Sept"), and several times cheaper for the thousands of cells of a plan.
+const MONTHS = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'] as const
 
-/** "3 Nov", or "3 Nov 2025" when the date is in another year than `now`. */
+function dayMonthYear(day: number, monthIndex: number, year: number, nowYear: number): string {
+  return year === nowYear ? `${day} ${MONTHS[monthIndex]}` : `${day} ${MONTHS[monthIndex]} ${year}`
+}
+
+/** "3 Nov", or "3 Nov 2025" when the date is in another year than `now` (local time). */
 export function shortDate(at: number, now: number): string {
-  return new Date(at).getFullYear() === new Date(now).getFullYear() ? SHORT.format(at) : SHORT_WITH_YEAR.format(at)
+  const d = new Date(at)
+  return dayMonthYear(d.getDate(), d.getMonth(), d.getFullYear(), new Date(now).getFullYear())
+}
+
+/** The same for a YYYY-MM-DD calendar date, read from its digits. */
+export function shortDay(day: string, now: number): string {
+  return dayMonthYear(Number(day.slice(8, 10)), Number(day.slice(5, 7)) - 1, Number(day.slice(0, 4)), new Date(now).getFullYear())
 }
 
 export const CELL_STATUS_WORDS: Record<CellStatus, string> = {
@@ -90,7 +107,7 @@ type CellCore = Omit<TrainingCell, 'words'>
 
 /** The words a cell shows: its status first, then the one date or reason that matters. */
 export function cellWords(cell: CellCore, planItem: TrainingFacts['planItem'], currentVersionNumber: number | null, now: number): string {
-  const target = planItem?.targetDate ? shortDate(dayStart(planItem.targetDate), now) : null
+  const target = planItem?.targetDate ? shortDay(planItem.targetDate, now) : null
   switch (cell.status) {
     case 'reteach':
       if (cell.reteachBecause === 'failed-check') return `Re-teach: spot check failed ${shortDate(cell.failedCheckAt!, now)}`
@@ -118,8 +135,9 @@ export function cellWords(cell: CellCore, planItem: TrainingFacts['planItem'], c
  * on the current version so brings them up to that version); any other decision means in training.
  * Precedence: reteach > check-due > ready > late > in-training > planned > not-needed.
  */
-export function trainingCell(facts: TrainingFacts, now: number): TrainingCell {
-  const latestLesson = [...facts.lessons].sort((a, b) => b.signedOffAt - a.signedOffAt || (a.id < b.id ? 1 : -1))[0] ?? null
+export function trainingCell(facts: TrainingFacts, now: number, day: DayBounds = dayBounds(now)): TrainingCell {
+  let latestLesson: TrainingFacts['lessons'][number] | null = null
+  for (const l of facts.lessons) if (!latestLesson || l.signedOffAt > latestLesson.signedOffAt || (l.signedOffAt === latestLesson.signedOffAt && l.id > latestLesson.id)) latestLesson = l
   const readyLesson = latestLesson?.decision === 'ready' ? latestLesson : null
 
   let readySince: number | null = null
@@ -135,9 +153,11 @@ export function trainingCell(facts: TrainingFacts, now: number): TrainingCell {
     trainedVersionId = readyLesson.versionId
     trainedVersionNumber = readyLesson.versionNumber
     // Only checks after the sign-off count: a re-teach starts the taper again.
-    const lastCheck = facts.checks
-      .filter(c => c.finishedAt > readyLesson.signedOffAt)
-      .sort((a, b) => b.finishedAt - a.finishedAt || (a.id < b.id ? 1 : -1))[0]
+    let lastCheck: TrainingFacts['checks'][number] | undefined
+    for (const c of facts.checks) {
+      if (c.finishedAt <= readyLesson.signedOffAt) continue
+      if (!lastCheck || c.finishedAt > lastCheck.finishedAt || (c.finishedAt === lastCheck.finishedAt && c.id > lastCheck.id)) lastCheck = c
+    }
     if (lastCheck?.outcome === 'reteach') {
       reteachBecause = 'failed-check'
       failedCheckAt = lastCheck.finishedAt
@@ -157,12 +177,12 @@ export function trainingCell(facts: TrainingFacts, now: number): TrainingCell {
 
   const ready = readyLesson !== null && reteachBecause === null
   const targetDate = facts.planItem?.targetDate ?? null
-  const late = !ready && targetDate !== null && targetDate < localDay(now)
-  const overdueCheck = nextCheckAt !== null && nextCheckAt < startOfDay(now)
+  const late = !ready && targetDate !== null && targetDate < day.today
+  const overdueCheck = nextCheckAt !== null && nextCheckAt < day.start
 
   let status: CellStatus
   if (reteachBecause) status = 'reteach'
-  else if (ready && nextCheckAt !== null && nextCheckAt <= endOfDay(now)) status = 'check-due'
+  else if (ready && nextCheckAt !== null && nextCheckAt <= day.end) status = 'check-due'
   else if (ready) status = 'ready'
   else if (late) status = 'late'
   else if (facts.lessons.length > 0 || facts.lessonInProgress) status = 'in-training'

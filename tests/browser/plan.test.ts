@@ -142,7 +142,7 @@ describe('plan at tablet size', () => {
 
       // Filters run on the server: "Late" leaves only learners with a late item.
       await page.getByTestId('plan-filter-status').selectOption('late')
-      await expect.poll(() => page.getByTestId('plan-count').innerText()).toMatch(/^\d+ of \d+ learners/)
+      await expect.poll(() => page.getByTestId('plan-count').innerText()).toMatch(/^Learners \d+–\d+ of \d+ \(\d+ on the roster\)/)
       await expect.poll(async () => {
         const rows = await page.locator('tbody tr').count()
         const withLate = await page.locator('tbody tr:has([data-status="late"])').count()

@@ -166,6 +166,23 @@ describe('filters', () => {
     expect(search.coverage).toEqual(everyone.coverage)
   })
 
+  it('pages the learners; cells follow the page and coverage does not', async () => {
+    const all = (await coach.client.get<PlanMatrix>('/api/plan?limit=500')).body
+    expect(all.learners.length).toBeGreaterThan(4)
+    const first = (await coach.client.get<PlanMatrix>('/api/plan?limit=2')).body
+    const second = (await coach.client.get<PlanMatrix>('/api/plan?limit=2&offset=2')).body
+    expect(first.learners.map(l => l.id)).toEqual(all.learners.slice(0, 2).map(l => l.id))
+    expect(second.learners.map(l => l.id)).toEqual(all.learners.slice(2, 4).map(l => l.id))
+    expect(first.page).toEqual({ offset: 0, limit: 2, matching: all.learners.length })
+    expect(first.cells.every(c => first.learners.some(l => l.id === c.learnerId))).toBe(true)
+    expect(first.cells.length).toBe(all.cells.filter(c => first.learners.some(l => l.id === c.learnerId)).length)
+    expect(first.coverage).toEqual(all.coverage)
+    expect((await coach.client.get<PlanMatrix>('/api/plan')).body.page.limit).toBe(50)
+    expect((await coach.client.get('/api/plan?limit=0')).status).toBe(422)
+    expect((await coach.client.get('/api/plan?limit=501')).status).toBe(422)
+    expect((await coach.client.get('/api/plan?offset=-1')).status).toBe(422)
+  })
+
   it('answers 422 to a filter it does not know', async () => {
     const res = await coach.client.get('/api/plan?status=finished')
     expect(res.status).toBe(422)
@@ -192,6 +209,11 @@ describe('CSV export', () => {
     const odile = rows.find(r => r[0] === 'Odile Farrant')!
     expect(odile.slice(5, 6)).toEqual(['Ready'])
     expect(odile[10]).toBe('2')
+
+    // The export is every matching row, not a page.
+    const all = (await coach.client.get<PlanMatrix>('/api/plan?limit=500')).body
+    expect(rows.length - 1).toBe(all.cells.length)
+    expect(parseCsv((await coach.client.get('/api/plan.csv?limit=1')).text).length).toBe(rows.length)
 
     const filtered = parseCsv((await coach.client.get(`/api/plan.csv?jobId=${sealer.jobId}`)).text)
     expect(filtered.slice(1).every(r => r[3] === 'Thread film on the bag sealer')).toBe(true)

@@ -3,7 +3,7 @@
 import { describe, expect, it } from 'vitest'
 import { CELL_STATUSES } from '../../shared/types/plan'
 import { firstCheckDate, nextCheckDate, nextIntervalIndex, SPOT_CHECK_INTERVAL_DAYS, type CheckOutcome } from '../../shared/utils/spot-check-schedule'
-import { CELL_STATUS_WORDS, dayStart, endOfDay, isReadyNow, localDay, startOfDay, trainingCell, type TrainingFacts } from '../../shared/utils/training-status'
+import { CELL_STATUS_WORDS, dayBounds, dayStart, endOfDay, isReadyNow, localDay, shortDate, shortDay, startOfDay, trainingCell, type TrainingFacts } from '../../shared/utils/training-status'
 
 const at = (day: string, hour = 10) => dayStart(day) + hour * 3_600_000
 const NOW = at('2026-12-02', 9)
@@ -27,6 +27,14 @@ function check(finishedAt: number, outcome: CheckOutcome, dueIndex: number) {
 }
 
 describe('day helpers', () => {
+  it('writes dates as "3 Nov", with the year only when it is not this year', () => {
+    expect(shortDate(at('2026-09-03'), NOW)).toBe('3 Sep')
+    expect(shortDate(at('2025-12-31'), NOW)).toBe('31 Dec 2025')
+    expect(shortDay('2026-01-05', NOW)).toBe('5 Jan')
+    expect(shortDay('2027-06-30', NOW)).toBe('30 Jun 2027')
+    expect(dayBounds(NOW)).toEqual({ today: '2026-12-02', start: dayStart('2026-12-02'), end: dayStart('2026-12-03') - 1 })
+  })
+
   it('works in local calendar days', () => {
     expect(localDay(at('2026-12-02', 23))).toBe('2026-12-02')
     expect(startOfDay(at('2026-12-02', 15))).toBe(dayStart('2026-12-02'))
