@@ -5,6 +5,7 @@ import { defineStore } from 'pinia'
 import type { BreakdownContent } from '#shared/schemas/breakdown'
 import { elementsOf, passElementIds, replayLesson } from '#shared/utils/lesson-state'
 import { focusContent } from '#shared/utils/refresher'
+import { withBreakdownNumbers } from '#shared/utils/refresher-cards'
 import { parsePassKey, type PassType } from '#shared/utils/lesson-events'
 import { MARK_LABELS, type MarkValue } from '#shared/utils/scoring'
 import type { VersionDetail } from '~/types/jobs'
@@ -42,7 +43,11 @@ export const useLessonStore = defineStore('lesson', () => {
   const currentPass = computed(() => (cursor.value.pass ? state.value?.passes.find(p => p.key === cursor.value.pass) ?? null : null))
   const currentType = computed<PassType | null>(() => (cursor.value.pass ? parsePassKey(cursor.value.pass)?.type ?? null : null))
   const currentIds = computed(() => (currentType.value && elements.value ? passElementIds(currentType.value, elements.value) : []))
-  const currentCards = computed(() => (currentType.value && content.value ? passCards(currentType.value, content.value) : []))
+  const currentCards = computed(() => {
+    if (!currentType.value || !content.value) return []
+    const cards = passCards(currentType.value, content.value)
+    return focus.value && version.value ? withBreakdownNumbers(cards, version.value.content) : cards
+  })
   const currentCard = computed(() => currentCards.value[cursor.value.index] ?? null)
 
   // Writes run one after another, in the order they were tapped.

@@ -196,6 +196,8 @@ describe.each(TABLET_VIEWPORTS)('refresher at $name', (viewport) => {
       // Present: only the two steps holding a change, in the new version's order.
       expect(await page.locator('[data-strip]').count()).toBe(2)
       expect(await cardTexts(page, 2)).toEqual(['Swing the blade guard fully open', 'Fit the new blade set'])
+      // Numbered as in the breakdown (and the change list), not as in the refresher.
+      expect(await page.locator('article.lesson-card').innerText()).toContain('Important step 2 of 3')
       await expectScreen(page, viewport, '4-present-P1')
       for (let i = 0; i < 2; i++) {
         await page.locator('[data-action="presented"]').click()

@@ -3,6 +3,8 @@
 import { describe, expect, it } from 'vitest'
 import { changedElementIds, focusContent } from '../../shared/utils/refresher'
 import { changeLines, focusWords } from '../../shared/utils/refresher-changes'
+import { withBreakdownNumbers } from '../../shared/utils/refresher-cards'
+import { passCards } from '../../shared/utils/lesson-flow'
 import { elementsOf, replayLesson } from '../../shared/utils/lesson-state'
 import type { BreakdownContent } from '../../shared/schemas/breakdown'
 import { kp, single, step } from '../fixtures/breakdowns'
@@ -163,5 +165,20 @@ describe('focusWords', () => {
     expect(focusWords(v, [steps(v)[0]!.id])).toBe('1 step and 1 key point')
     expect(focusWords(v, [steps(v)[0]!.id, steps(v)[1]!.keyPoints[0]!.id, steps(v)[2]!.keyPoints[0]!.id])).toBe('3 steps and 3 key points')
     expect(focusWords(v, [])).toBe('nothing to teach again')
+  })
+})
+
+describe('withBreakdownNumbers', () => {
+  it('numbers a refresher\'s cards as the whole breakdown does', () => {
+    const v2 = slicer()
+    const added = kp('safety', 'Blade guard back on before restart', 'Exposed blades cut')
+    steps(v2)[2]!.keyPoints.push(added)
+    const focused = focusContent(v2, [steps(v2)[1]!.id, added.id])
+    const t3 = withBreakdownNumbers(passCards('T3', focused), v2)
+    expect(t3.map(c => [c.stepNumber, c.keyPointNumber, c.stepCount])).toEqual([[2, 1, 4], [3, 2, 4]])
+    const t1 = withBreakdownNumbers(passCards('T1', focused), v2)
+    expect(t1.map(c => [c.elementId, c.stepNumber, c.keyPointNumber])).toEqual([[steps(v2)[1]!.id, 2, null], [steps(v2)[2]!.id, 3, null]])
+    // Without focus the numbers are the same as before.
+    expect(withBreakdownNumbers(passCards('T3', v2), v2)).toEqual(passCards('T3', v2))
   })
 })
