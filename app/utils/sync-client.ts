@@ -150,9 +150,10 @@ export async function applyPushAnswer(push: Push, answer: PushAnswer, now = Date
   const rejected = new Map(answer.rejected.map(r => [r.id, r.reason]))
   await db.transaction('rw', [db.lessons, db.events, db.checks, db.checkEvents], async () => {
     for (const e of push.events) {
-      const table = 'checkId' in e ? db.checkEvents : db.events
-      if (accepted.has(e.id)) await table.update(e.id, { synced: 1, rejection: null } as Partial<SyncedEvent>)
-      else if (rejected.has(e.id)) await table.update(e.id, { rejection: { reason: rejected.get(e.id)!, at: now } } as Partial<SyncedEvent>)
+      const changes = accepted.has(e.id) ? { synced: 1 as const, rejection: null } : rejected.has(e.id) ? { rejection: { reason: rejected.get(e.id)!, at: now } } : null
+      if (!changes) continue
+      if ('checkId' in e) await db.checkEvents.update(e.id, changes as Partial<SyncedCheckEvent>)
+      else await db.events.update(e.id, changes as Partial<SyncedEvent>)
     }
     for (const c of push.checks) {
       const id = c.id as string

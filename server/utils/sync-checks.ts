@@ -29,7 +29,8 @@ function chunks<T>(items: readonly T[], size = CHUNK): T[][] {
 
 async function selectIn(runner: Client | Transaction, sqlBefore: string, ids: readonly string[], extraArgs: Array<string | number> = []) {
   const rows: Record<string, unknown>[] = []
-  for (const part of chunks([...new Set(ids)])) {
+  for (const [i, part] of chunks([...new Set(ids)]).entries()) {
+    if (i > 0) await yieldToLoop()
     const rs = await runner.execute({ sql: `${sqlBefore} (${part.map(() => '?').join(',')})`, args: [...extraArgs, ...part] })
     rows.push(...(rs.rows as unknown as Record<string, unknown>[]))
   }
@@ -51,10 +52,15 @@ export function isCheckEventItem(item: unknown): boolean {
   return typeof item === 'object' && item !== null && 'checkId' in item
 }
 
+/** Items validated between two yields to the event loop (about 2 ms of zod), as for lessons. */
+const VALIDATE_CHUNK = 250
+
 /** Each check and check mark on its own: shape, sender, duplicates inside the push. */
-export function validateCheckItems(deviceId: string, checkItems: readonly unknown[], eventItems: readonly unknown[], rejected: Rejection[]) {
+export async function validateCheckItems(deviceId: string, checkItems: readonly unknown[], eventItems: readonly unknown[], rejected: Rejection[]) {
+  let validated = 0
   const checks: SyncCheck[] = []
   for (const item of checkItems) {
+    if (++validated % VALIDATE_CHUNK === 0) await yieldToLoop()
     const r = syncCheckSchema.safeParse(item)
     if (r.success) checks.push(r.data)
     else rejected.push({ id: idOf(item), reason: `Spot check not valid — ${describeIssues(r.error)}` })
@@ -62,6 +68,7 @@ export function validateCheckItems(deviceId: string, checkItems: readonly unknow
   const events: SyncCheckEvent[] = []
   const seen = new Map<string, string>()
   for (const item of eventItems) {
+    if (++validated % VALIDATE_CHUNK === 0) await yieldToLoop()
     if ((item as { lessonId?: unknown }).lessonId !== undefined) {
       rejected.push({ id: idOf(item), reason: 'A mark names either a lesson or a spot check, not both.' })
       continue

@@ -161,7 +161,7 @@ export async function mergePush(client: Client, organisationId: string, deviceId
     seenInPush.set(e.id, e)
     events.push(e)
   }
-  const checkItems = validateCheckItems(deviceId, body.checks, checkEventItems, rejected)
+  const checkItems = await validateCheckItems(deviceId, body.checks, checkEventItems, rejected)
 
   // 2. Every id a lesson names must belong to this organisation.
   const idsIn = async (table: string, ids: string[], extra = '') => new Set((await selectIn(client, `select id from ${table} where organisation_id = ? ${extra} and id in`, ids, '', [organisationId])).map(r => r.id as string))

@@ -1,7 +1,7 @@
 // What a tablet needs to know from the server: published breakdowns (with their job), the roster,
 // lessons with their scores, spot checks with their outcome and next date, and the plan's items.
 // since=0 is a full snapshot; a later cursor reads the change feed. Due checks are derived (from
-// trainingRows), so the route sends them whole on every pull (dueChecksOf).
+// trainingRows), so the route sends them whole on every pull (tabletDueChecks).
 import type { Client } from '@libsql/client'
 import type { TrainingRow } from './training-state'
 
@@ -132,7 +132,7 @@ export interface DueCheck { key: string, organisationId: string, learnerId: stri
  * with a next check date (due, late or coming), leaving out archived learners and jobs, pinned to
  * the version they were trained on.
  */
-export async function dueChecksOf(client: Client, organisationId: string, rows: readonly TrainingRow[]): Promise<DueCheck[]> {
+export async function tabletDueChecks(client: Client, organisationId: string, rows: readonly TrainingRow[]): Promise<DueCheck[]> {
   const [learners, jobs] = await client.batch([
     { sql: 'select id from learners where organisation_id = ? and archived_at is null', args: [organisationId] },
     { sql: 'select id from jobs where organisation_id = ? and archived_at is null', args: [organisationId] },
