@@ -6,6 +6,8 @@ import { serverUnreachable, statusOf } from '~/utils/offline'
 import { forgetStudy, keepStudy, keepStudyPhotos, keptStudy, studyPhotoIds, type StudyRecords } from '~/utils/study-cards'
 
 export interface StudyState {
+  /** Whose training this is: another member signing in on the same tab must not see it. */
+  userId: string | null
   loading: boolean
   loaded: boolean
   cards: StudyCard[]
@@ -20,7 +22,7 @@ export interface StudyState {
 }
 
 export function useStudy() {
-  const state = useState<StudyState>('study', () => ({ loading: false, loaded: false, cards: [], records: null, source: null, notOnRoster: false, problem: null, photos: '' }))
+  const state = useState<StudyState>('study', () => ({ userId: null, loading: false, loaded: false, cards: [], records: null, source: null, notOnRoster: false, problem: null, photos: '' }))
   const member = useMemberStore()
 
   async function fromDevice(userId: string) {
@@ -47,6 +49,7 @@ export function useStudy() {
     if (import.meta.server) return
     const me = member.me
     if (!me || me.role !== 'learner' || state.value.loading) return
+    if (state.value.userId !== me.user.id) Object.assign(state.value, { userId: me.user.id, loaded: false, cards: [], records: null, source: null, photos: '' })
     state.value.loading = true
     state.value.problem = null
     state.value.notOnRoster = false
@@ -86,5 +89,8 @@ export function useStudy() {
     }
   }
 
-  return { state, load }
+  /** Whether what the state holds is the signed-in member's own (loaded for them in this visit). */
+  const ready = computed(() => state.value.loaded && state.value.userId === member.me?.user.id)
+
+  return { state, ready, load }
 }

@@ -8,7 +8,7 @@ import sharp from 'sharp'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
 import { PASSWORD, addMember, signUp } from '../support/accounts'
-import { TABLET_VIEWPORTS, launchBrowser, openContext, overflowsSideways, smallTargets, visit, waitForHydration, type Viewport } from '../support/browser'
+import { TABLET_VIEWPORTS, launchBrowser, openContext, overflowsSideways, routerPush, smallTargets, visit, waitForHydration, type Viewport } from '../support/browser'
 import { photoForm } from '../support/photos'
 import { startServer, type TestServer } from '../support/server'
 import { linkedLearner, spotCheck, teach, type Taught } from '../support/people'
@@ -74,6 +74,7 @@ async function bakery(label: string) {
   const coach = await addMember(server, admin.client, 'coach')
   const ilse = await linkedLearner(server, admin.client, 'Ilse Brannagh')
   await admin.client.post('/api/learners', { name: 'Tomas Feld', reference: 'HB-12' })
+  const mirela = await linkedLearner(server, admin.client, 'Mirela Dunn')
   const photos = [await upload(admin.client, '#b3372a'), await upload(admin.client, '#2f5b8f')]
   const slicer = { learnerId: ilse.learnerId, ...(await job(admin.client, 'Change the slicer blade set', breakdown(photos[0]!, photos[1]!))) }
   const sealer = { learnerId: ilse.learnerId, ...(await job(admin.client, 'Thread film on the bag sealer', breakdown(null, null))) }
@@ -84,7 +85,7 @@ async function bakery(label: string) {
   const sealed = await teach(coach, sealer, { daysAgo: 10 })
   await spotCheck(coach, sealer, { daysAgo: 3, lessonId: sealed.lessonId, marks: { [sealer.content.units[0]!.steps[0]!.keyPoints[0]!.id]: 'missed' } })
   await teach(coach, weigher, { daysAgo: 0 })
-  return { admin, coach, ilse, photos, slicer }
+  return { admin, coach, ilse, mirela, photos, slicer }
 }
 
 async function axeViolations(page: Page) {
@@ -147,9 +148,9 @@ describe.each(TABLET_VIEWPORTS)('people and study at $name', (viewport) => {
       await expectScreen(page, viewport, 'people-roster')
 
       // Adding a learner keeps working from the roster.
-      await page.getByTestId('add-learner').getByLabel('Name').fill('Mirela Dunn')
+      await page.getByTestId('add-learner').getByLabel('Name').fill('Ottilie Varga')
       await page.getByRole('button', { name: 'Add to the roster' }).click()
-      await expect.poll(() => page.locator('[data-learner="Mirela Dunn"]').count()).toBe(1)
+      await expect.poll(() => page.locator('[data-learner="Ottilie Varga"]').count()).toBe(1)
 
       await row.getByRole('link', { name: 'Ilse Brannagh' }).click()
       await page.waitForURL(url => url.pathname === `/people/${ilse.learnerId}`)
@@ -186,7 +187,7 @@ describe.each(TABLET_VIEWPORTS)('people and study at $name', (viewport) => {
   })
 
   it('a learner studies the cards with photos, and still can offline after a reload', async () => {
-    const { ilse, photos, slicer } = await bakery(`study ${viewport.width}`)
+    const { ilse, mirela, photos, slicer } = await bakery(`study ${viewport.width}`)
     const { context, page, pageErrors } = await openContext(browser, server.url, viewport, { serviceWorkers: 'allow' })
     try {
       await signIn(page, ilse.email)
@@ -233,6 +234,22 @@ describe.each(TABLET_VIEWPORTS)('people and study at $name', (viewport) => {
       expect(await page.getByTestId('check-history').innerText()).toContain('Re-teach needed')
       await expectScreen(page, viewport, 'study-overview-offline')
       expect(photos).toHaveLength(2)
+
+      // Back online, Ilse signs out and Mirela signs in on the same tab: none of Ilse's training shows.
+      await context.setOffline(false)
+      await expect.poll(() => page.getByTestId('offline-banner').count(), { timeout: 15_000 }).toBe(0)
+      await page.getByRole('button', { name: 'Sign out' }).click()
+      await page.waitForURL(url => url.pathname === '/sign-in')
+      await waitForHydration(page)
+      await page.getByLabel('E-mail address').fill(mirela.email)
+      await page.getByLabel('Password').fill(PASSWORD)
+      await page.getByRole('button', { name: 'Sign in' }).click()
+      await page.waitForURL(url => url.pathname === '/')
+      await routerPush(page, `/study/${slicer.versionId}`)
+      await expect.poll(() => page.getByRole('heading', { level: 1 }).innerText()).toBe('Not among your breakdowns')
+      await routerPush(page, '/study')
+      await expect.poll(() => page.getByTestId('study-breakdowns').innerText()).toContain('No breakdowns yet')
+      expect(await page.locator('body').innerText()).not.toContain('Change the slicer blade set')
       expect(pageErrors).toEqual([])
     }
     finally {
