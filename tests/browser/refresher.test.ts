@@ -236,6 +236,10 @@ describe.each(TABLET_VIEWPORTS)('refresher at $name', (viewport) => {
       await expectScreen(page, viewport, '6-followup-signed-off')
       const [lesson] = (await idbRows<{ id: string, focus: string[] | null, versionId: string }>(page, 'lessons')).filter(l => l.id === lessonId)
       expect(lesson).toMatchObject({ versionId: setup.v2Id, focus: setup.focus })
+      // Still offline, the start screen no longer offers a refresher: the tablet's own lesson says it is done.
+      await visit(page, `/lessons/new?learner=${setup.learnerId}&job=${setup.jobId}&refresher=1`)
+      await expect.poll(() => page.getByTestId('no-refresher').isVisible()).toBe(true)
+      expect(await page.getByTestId('refresher-choice').count()).toBe(0)
 
       // Back online: the lesson goes to the server, scored on the same focused elements, and the flag clears.
       await visit(page, '/')
