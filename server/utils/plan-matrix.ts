@@ -55,7 +55,11 @@ export async function planMatrix(organisationId: string, query: PlanFilters, now
 
   // Every cell of the shown jobs, for every active learner: coverage needs the whole roster.
   const active = new Set(allLearners.map(l => l.id))
-  const rows = jobs.length ? (await trainingRows(organisationId, { jobIds: jobs.map(j => j.id) }, now)).filter(r => active.has(r.learnerId)) : []
+  // All jobs shown: no id list to bind (the archived jobs' rows are dropped below with the rest).
+  const shownJobs = new Set(jobs.map(j => j.id))
+  const rows = jobs.length
+    ? (await trainingRows(organisationId, jobs.length === allJobs.length ? {} : { jobIds: [...shownJobs] }, now)).filter(r => active.has(r.learnerId) && shownJobs.has(r.jobId))
+    : []
   const coverageJobs = coverageByJob(jobs.map(j => ({ jobId: j.id, workAreaId: j.workAreaId, needed: j.coverageTarget })), rows)
   const coverageAreas = coverageByWorkArea(coverageJobs).map(a => ({ ...a, name: a.workAreaId ? areaNames.get(a.workAreaId) ?? 'Work area' : 'No work area' }))
 
