@@ -146,6 +146,22 @@ describe('retraining after a new version', () => {
     expect(list.people).toEqual([])
   })
 
+  it('asks for the whole job again when the new version only removes something', async () => {
+    const draft = await admin.client.post(`/api/jobs/${job.jobId}/versions`)
+    const read = await admin.client.get(`/api/versions/${draft.body.id}`)
+    const content = structuredClone(read.body.content) as BreakdownContent
+    content.units[0]!.steps.splice(0, 1)
+    expect((await admin.client.patch(`/api/versions/${draft.body.id}`, { revision: read.body.revision, content })).status).toBe(200)
+    const published = await admin.client.post(`/api/versions/${draft.body.id}/publish`, { changeNote: 'Lockout moved to its own job.' })
+    expect(published.body.flaggedForRefresher).toBe(1)
+    const [person] = (await retraining()).people
+    expect(person).toMatchObject({ learnerId, trainedVersion: { id: v2.id, number: 2 }, currentVersion: { id: draft.body.id, number: 3 }, focus: null })
+    expect(person!.changes.map(c => [c.words, c.taught])).toEqual([
+      ['Step removed (was step 1): “Stop and lock out slicer”', false],
+      ['Safety key point removed from step 1: “Own padlock on the isolator”', false],
+    ])
+  })
+
   it('answers 404 for an id that is not a uuid', async () => {
     expect((await coach.client.get('/api/jobs/not-a-job/retraining')).status).toBe(404)
   })
