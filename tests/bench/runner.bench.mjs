@@ -3,6 +3,8 @@
 //   npm run bench:runner              uses the existing .output build (builds it if missing)
 //   npm run bench:runner -- --build   rebuilds first (npx nuxt build, under the build lock)
 //   ... -- --samples 300              measured taps per side (50–5000, default 300)
+//   ... -- --output DIR               measures another build's output folder instead of .output
+//   FOURFOLD_BUILD_LOCK_HELD=1        the caller holds the build lock for the whole run (lib/build.mjs)
 //
 // (a) Tap → IndexedDB committed: the app's own appendEvent (app/utils/localdb.ts, bundled as it
 //     is by Vite, nothing added to the app) awaited in a page of the built app, beside a raw
@@ -22,6 +24,7 @@ import { fileURLToPath } from 'node:url'
 import { gzipSync } from 'node:zlib'
 import { chromium } from 'playwright-core'
 import { build as viteBuild } from 'vite'
+import { buildLockHeld } from './lib/build.mjs'
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '../..')
 const LOCK = '/tmp/fourfold-build.lock'
@@ -33,6 +36,12 @@ const PASSWORD = 'correct horse battery staple'
 const args = process.argv.slice(2)
 const forceBuild = args.includes('--build')
 const samples = parseSamples(args)
+const otherOutput = args.includes('--output') ? resolve(args[args.indexOf('--output') + 1] ?? '') : null
+if (otherOutput && forceBuild) throw new Error('--output and --build do not go together')
+if (otherOutput && !existsSync(join(otherOutput, 'server/index.mjs'))) throw new Error(`--output ${otherOutput} has no server/index.mjs`)
+// Under the caller's hold of the build lock, the commands below must not wait for it again.
+const lockHeld = buildLockHeld()
+const underLock = (command, commandArgs) => (lockHeld ? [command, commandArgs] : ['flock', [LOCK, command, ...commandArgs]])
 
 function parseSamples(list) {
   const i = list.indexOf('--samples')
@@ -101,6 +110,11 @@ async function run(command, commandArgs, options = {}) {
 // ---- builds (one nuxt build at a time in this machine's checkout: the build lock) -------
 
 async function appBuild() {
+  if (otherOutput) {
+    const dir = await tempDir('fourfold-bench-app-')
+    await run('cp', ['-r', otherOutput, join(dir, 'output')])
+    return { output: join(dir, 'output'), how: `${otherOutput} (--output)` }
+  }
   const entry = join(root, '.output/server/index.mjs')
   let how = `existing .output (built ${existsSync(entry) ? statSync(entry).mtime.toISOString() : '?'}; pass --build to rebuild)`
   const dir = await tempDir('fourfold-bench-app-')
@@ -110,7 +124,7 @@ async function appBuild() {
   const build = forceBuild || !existsSync(entry)
   if (build) how = `fresh build (${forceBuild ? '--build given' : '.output missing'})`
   log(`${build ? 'Building the app and copying' : 'Copying'} .output under ${LOCK} …`)
-  await run('flock', [LOCK, 'sh', '-c', `${build ? 'npx nuxt build && ' : ''}cp -r .output "${join(dir, 'output')}"`], { cwd: root, env: { ...process.env, NODE_ENV: 'production' } })
+  await run(...underLock('sh', ['-c', `${build ? 'npx nuxt build && ' : ''}cp -r .output "${join(dir, 'output')}"`]), { cwd: root, env: { ...process.env, NODE_ENV: 'production' } })
   if (build) how += `, ${Math.round((Date.now() - started) / 1000)} s`
   const output = join(dir, 'output')
   if (!existsSync(join(output, 'server/index.mjs')) || !existsSync(join(output, 'nitro.json'))) throw new Error('the copy of .output is incomplete; run again with --build')
@@ -135,7 +149,7 @@ async function bareBuild() {
   await writeFile(join(dir, 'app/pages/index.vue'), '<template>\n  <h1>A bare page</h1>\n</template>\n')
   const started = Date.now()
   log('Building the bare Nuxt app under the lock …')
-  await run('flock', [LOCK, 'npx', 'nuxt', 'build'], { cwd: dir, env: { ...process.env, NODE_ENV: 'production' } })
+  await run(...underLock('npx', ['nuxt', 'build']), { cwd: dir, env: { ...process.env, NODE_ENV: 'production' } })
   const version = JSON.parse(readFileSync(join(root, 'node_modules/nuxt/package.json'), 'utf8')).version
   return { output: join(dir, '.output'), how: `nuxt ${version}, ${Math.round((Date.now() - started) / 1000)} s` }
 }
@@ -423,7 +437,7 @@ async function main() {
   figures.js_ratio = r2(runnerJs.kib / bareJs.kib)
 
   log('')
-  log(`Chromium ${chromiumVersion} · app: ${app.how} · bare: ${bare.how}`)
+  log(`Chromium ${chromiumVersion} · app: ${app.how} · bare: ${bare.how}${lockHeld ? ' · build lock held for the whole run' : ''}`)
   log('')
   log('| tap → IndexedDB committed (strict durability) | p50 ms | p95 ms | max ms |')
   log('| --- | ---: | ---: | ---: |')
@@ -439,7 +453,7 @@ async function main() {
   log(`| bare Nuxt page / | ${bareScripts.length} | ${figures.bare_js_gzip_kb} |`)
   log(`| ratio | | ${figures.js_ratio}× (goal ≤ 2×) |`)
   log('')
-  log('Largest runner scripts (gzip bytes): ' + runnerJs.files.sort((a, b) => b.size - a.size).slice(0, 6).map(f => `${f.path.replace('/_nuxt/', '')} ${f.size}`).join(', '))
+  log('Runner scripts (gzip bytes), largest first: ' + runnerJs.files.sort((a, b) => b.size - a.size).map(f => `${f.path.replace('/_nuxt/', '')} ${f.size}`).join(', '))
   log(`Load average at the end: ${loadavg().map(n => n.toFixed(2)).join(' ')}`)
   const keys = ['idb_commit_p95_ms', 'idb_raw_p95_ms', 'idb_ratio', 'runner_js_gzip_kb', 'bare_js_gzip_kb', 'js_ratio']
   log(JSON.stringify(Object.fromEntries(keys.map(k => [k, figures[k]]))))
