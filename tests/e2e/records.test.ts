@@ -204,6 +204,14 @@ describe('GET /api/records', () => {
     }
   })
 
+  it('names the coaches the coach filter offers, of this organisation only', async () => {
+    const res = await auditor.client.get<Array<{ id: string, name: string }>>('/api/records/coaches')
+    expect(res.status).toBe(200)
+    expect(res.body.map(c => c.id).sort()).toEqual([admin.userId, coach.userId, coach2.userId].sort())
+    expect(res.body.map(c => c.id)).not.toContain(otherIds.coach)
+    expect((await learnerMember.client.get('/api/records/coaches')).status).toBe(403)
+  })
+
   it('never lists another organisation\'s records, even when asked for its ids', async () => {
     const mine = await list(other.client)
     expect(idsOf(mine.rows).sort()).toEqual([otherIds.lesson, otherIds.check].sort())
