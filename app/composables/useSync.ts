@@ -1,6 +1,6 @@
 // Sends what the tablet recorded and brings back what changed on the server. Runs when the
 // connection returns (plugins/sync.client.ts) and on demand; one run at a time, state shared.
-import { liveQuery } from 'dexie'
+import Dexie, { type ObservabilitySet } from 'dexie'
 import type { PullAnswer } from '~/utils/sync-pull-types'
 import { localDb } from '~/utils/localdb'
 import { storePulledChecks, type SyncedCheck, type SyncedCheckEvent } from '~/utils/local-checks'
@@ -23,6 +23,8 @@ export interface SyncState {
 }
 
 let inFlight: Promise<void> | null = null
+/** How long after a change to the outbox the waiting counts are read again. */
+const OUTBOX_RECOUNT_MS = 300
 let watching: { organisationId: string, subscription: { unsubscribe: () => void } } | null = null
 
 export function useSync() {
@@ -40,8 +42,10 @@ export function useSync() {
   }
 
   /**
-   * Keeps the waiting counts live as marks are recorded. Counting through the `synced` index is
-   * cheap, so a tap in the runner does not pay for re-reading the whole outbox.
+   * Keeps the waiting counts live as marks are recorded, counted through the `synced` indexes: at
+   * most once every OUTBOX_RECOUNT_MS after the outbox tables change (in this tab or another), not
+   * by a liveQuery that re-counts after every single write — so a tap in the runner does not queue
+   * four count queries behind its own commit on the stores the next tap writes.
    */
   function watchOutbox() {
     if (import.meta.server || !member.me) return
@@ -49,19 +53,37 @@ export function useSync() {
     if (watching?.organisationId === organisationId) return
     watching?.subscription.unsubscribe()
     const db = localDb()
-    const subscription = liveQuery(async () => ({
-      events: await db.events.where('synced').equals(0).count() + await db.checkEvents.where('synced').equals(0).count(),
-      lessons: await db.lessons.where('synced').equals(0).count(),
-      checks: await db.checks.where('synced').equals(0).count(),
-    })).subscribe({
-      next: (counts) => {
-        state.value.waiting = {
-          events: Math.max(0, counts.events - state.value.rejectedEvents.length - state.value.rejectedCheckEvents.length),
-          lessons: Math.max(0, counts.lessons - state.value.rejectedLessons.length),
-          checks: Math.max(0, counts.checks - state.value.rejectedChecks.length),
-        }
+    const outboxParts = ['events', 'checkEvents', 'lessons', 'checks'].map(table => `idb://${db.name}/${table}/`)
+    let timer: ReturnType<typeof setTimeout> | undefined
+    let stopped = false
+    const recount = async () => {
+      timer = undefined
+      const [events, checkEvents, lessons, checks] = await Promise.all([
+        db.events.where('synced').equals(0).count(),
+        db.checkEvents.where('synced').equals(0).count(),
+        db.lessons.where('synced').equals(0).count(),
+        db.checks.where('synced').equals(0).count(),
+      ])
+      if (stopped) return
+      state.value.waiting = {
+        events: Math.max(0, events + checkEvents - state.value.rejectedEvents.length - state.value.rejectedCheckEvents.length),
+        lessons: Math.max(0, lessons - state.value.rejectedLessons.length),
+        checks: Math.max(0, checks - state.value.rejectedChecks.length),
+      }
+    }
+    const onMutated = (parts: ObservabilitySet) => {
+      if (stopped || timer !== undefined || !Object.keys(parts).some(part => outboxParts.some(prefix => part.startsWith(prefix)))) return
+      timer = setTimeout(() => void recount().catch(() => undefined), OUTBOX_RECOUNT_MS)
+    }
+    Dexie.on.storagemutated.subscribe(onMutated)
+    const subscription = {
+      unsubscribe: () => {
+        stopped = true
+        clearTimeout(timer)
+        Dexie.on.storagemutated.unsubscribe(onMutated)
       },
-    })
+    }
+    void recount().catch(() => undefined)
     watching = { organisationId, subscription }
     readOutbox(organisationId)
     db.meta.get(`lastSyncedAt:${organisationId}`).then((row) => {

@@ -1,7 +1,7 @@
 // The tablet's own store (IndexedDB through Dexie), opened lazily and only in the browser.
 // It holds what a lesson needs with the network off: published breakdowns and their photos,
 // the roster, the device id, lessons and the outbox of lesson events (DESIGN.md §7).
-import Dexie, { type EntityTable } from 'dexie'
+import Dexie, { type EntityTable, type ObservabilitySet, type RangeSetConstructor } from 'dexie'
 import type { BreakdownContent } from '#shared/schemas/breakdown'
 import type { LessonEvent } from '#shared/utils/lesson-events'
 // crypto.randomUUID exists only in secure contexts; a tablet on a plain-http site address still needs ids.
@@ -157,9 +157,11 @@ export function localDb(): FourfoldDb {
 
 /** For tests: forget the open handle so the next call opens afresh. */
 export async function closeLocalDb() {
+  if (db) await flushLessonTouches().catch(() => undefined)
   db?.close()
   db = undefined
   knownDeviceId = undefined
+  nextSeq = undefined
 }
 
 async function meta<T>(key: string): Promise<T | undefined> {
@@ -183,22 +185,131 @@ export async function deviceId(): Promise<string> {
 export type NewEvent = Pick<LessonEvent, 'lessonId' | 'pass' | 'elementId' | 'kind' | 'value'>
 
 /**
- * Appends one event with this device's next sequence number, in one strict transaction with the
- * lesson's own updatedAt; resolves only once IndexedDB has committed it.
+ * The sequence number this tab expects to give its next event, once it has read the stored one:
+ * taps reserve numbers here at once, so a tap costs no read before its writes. The stored `seq`
+ * (meta) stays the truth: each write checks it in its own transaction (see writeEvent).
+ */
+let nextSeq: number | undefined
+
+/**
+ * Appends one event with this device's next sequence number, in one strict transaction; resolves
+ * only once IndexedDB has committed it. The lesson's updatedAt follows a moment later
+ * (touchLesson), outside the tap's transaction.
  */
 export async function appendEvent(input: NewEvent, now = Date.now()): Promise<LocalEvent> {
   const store = localDb()
-  const device = await deviceId()
-  return store.transaction('rw', [store.meta, store.events, store.lessons], async () => {
-    const seq = ((await meta<number>('seq')) ?? 0) + 1
-    const event: LocalEvent = { ...input, id: newId(), clientTime: now, deviceId: device, seq, synced: 0 }
-    // Issued together inside the one transaction; it commits only when all three are done.
-    await Promise.all([
-      store.meta.put({ key: 'seq', value: seq }),
-      store.events.add(event),
-      store.lessons.update(input.lessonId, { updatedAt: now }),
-    ])
-    return event
+  const device = knownDeviceId ?? await deviceId()
+  if (!store.isOpen()) await store.open()
+  let event: LocalEvent
+  try {
+    event = await writeEvent(store, input, device, now, nextSeq === undefined ? undefined : nextSeq++)
+  }
+  catch (error) {
+    nextSeq = undefined
+    if (!(error instanceof SequenceMoved)) throw error
+    // Another tab (or a spot check's mark) took the number meanwhile: read the stored one this time.
+    event = await writeEvent(store, input, device, now, undefined)
+  }
+  nextSeq = Math.max(nextSeq ?? 0, event.seq + 1)
+  // Observers hear of it just after the tap resolves: the screen does not wait for them.
+  setTimeout(() => announceEvent(store, event), 0)
+  touchLesson(input.lessonId, now)
+  return event
+}
+
+class SequenceMoved extends Error {}
+
+/**
+ * One strict transaction on the IndexedDB connection Dexie opened: the device's `seq` and the
+ * event, no more. Written without Dexie's layers (they cost more than the commit itself on a
+ * tablet) and announced to Dexie afterwards (announceEvent). With a reserved number the stored seq
+ * is read in the same transaction, ahead of the writes but not waited for: if it is not the number
+ * just before ours, the transaction is aborted from that read's own callback, before anything can
+ * commit, and appendEvent tries again with the stored number. Without one, the writes are issued
+ * from the read's callback. Either way no two events of a device share a number.
+ */
+function writeEvent(store: FourfoldDb, input: NewEvent, device: string, now: number, reserved: number | undefined): Promise<LocalEvent> {
+  return new Promise((resolve, reject) => {
+    const tx = store.backendDB().transaction(['meta', 'events'], 'readwrite', { durability: 'strict' })
+    const metaStore = tx.objectStore('meta')
+    let event: LocalEvent | undefined
+    let moved = false
+    const write = (seq: number) => {
+      event = { ...input, id: newId(), clientTime: now, deviceId: device, seq, synced: 0 }
+      metaStore.put({ key: 'seq', value: seq } satisfies MetaRow)
+      tx.objectStore('events').add(event)
+    }
+    const stored = metaStore.get('seq')
+    const storedSeq = () => ((stored.result as MetaRow | undefined)?.value as number | undefined) ?? 0
+    if (reserved === undefined) {
+      stored.onsuccess = () => write(storedSeq() + 1)
+    }
+    else {
+      stored.onsuccess = () => {
+        if (storedSeq() === reserved - 1) return
+        moved = true
+        tx.abort()
+      }
+      write(reserved)
+    }
+    tx.oncomplete = () => resolve(event!)
+    tx.onabort = () => reject(moved ? new SequenceMoved() : (tx.error ?? new DOMException('The tablet\'s storage gave up on the write.', 'AbortError')))
+  })
+}
+
+/** Tells Dexie's observers (liveQuery, the outbox counts, other tabs) what the tap wrote, as a write through Dexie would. */
+function announceEvent(store: FourfoldDb, e: LocalEvent) {
+  // Dexie's own RangeSet, read from the default export at run time: the server's (CommonJS) dexie
+  // has no named RangeSet export, and the bundler would turn a plain property read into one.
+  const RangeSet = Reflect.get(Dexie, 'RangeSet') as RangeSetConstructor
+  const events = `idb://${store.name}/events/`
+  const meta = `idb://${store.name}/meta/`
+  const parts: ObservabilitySet = {
+    [events]: new RangeSet(e.id),
+    [`${events}:dels`]: new RangeSet(e.id),
+    [`${events}lessonId`]: new RangeSet(e.lessonId),
+    [`${events}[lessonId+seq]`]: new RangeSet([e.lessonId, e.seq]),
+    [`${events}[deviceId+seq]`]: new RangeSet([e.deviceId, e.seq]),
+    [`${events}synced`]: new RangeSet(e.synced),
+    [meta]: new RangeSet('seq'),
+    [`${meta}:dels`]: new RangeSet('seq'),
+  }
+  Dexie.on.storagemutated.fire(parts)
+}
+
+/** Lessons whose updatedAt is still to be written, with the latest tap's time. */
+const lessonTouches = new Map<string, number>()
+let touchTimer: ReturnType<typeof setTimeout> | undefined
+/** How long taps are gathered before one write of the lessons' updatedAt. */
+const TOUCH_DELAY_MS = 1000
+
+/**
+ * A tap moves its lesson's updatedAt (Today lists the latest first). It is written once for a
+ * run of taps, a second after the first, when the page is hidden, and before the lesson helpers
+ * below read lessons, so a tap's own transaction holds only what a mark needs.
+ */
+function touchLesson(lessonId: string, at: number) {
+  lessonTouches.set(lessonId, Math.max(lessonTouches.get(lessonId) ?? 0, at))
+  if (touchTimer !== undefined) return
+  touchTimer = setTimeout(() => void flushLessonTouches().catch(() => undefined), TOUCH_DELAY_MS)
+  if (typeof document !== 'undefined') document.addEventListener('visibilitychange', flushWhenHidden, { once: true })
+}
+
+function flushWhenHidden() {
+  if (document.visibilityState === 'hidden') void flushLessonTouches().catch(() => undefined)
+  else if (touchTimer !== undefined) document.addEventListener('visibilitychange', flushWhenHidden, { once: true })
+}
+
+/** Writes the updatedAt of lessons tapped since the last write (never moving one backwards). */
+export async function flushLessonTouches(): Promise<void> {
+  clearTimeout(touchTimer)
+  touchTimer = undefined
+  if (!lessonTouches.size) return
+  const touches = [...lessonTouches]
+  lessonTouches.clear()
+  const store = localDb()
+  await store.transaction('rw', store.lessons, async () => {
+    for (const [id, at] of touches) await store.lessons.where(':id').equals(id).and(l => l.updatedAt < at).modify({ updatedAt: at })
   })
 }
 
@@ -215,10 +326,12 @@ export async function updateLesson(id: string, changes: Partial<Omit<LocalLesson
 }
 
 export async function getLesson(id: string): Promise<LocalLesson | undefined> {
+  await flushLessonTouches().catch(() => undefined)
   return localDb().lessons.get(id)
 }
 
 export async function lessonsOf(organisationId: string): Promise<LocalLesson[]> {
+  await flushLessonTouches().catch(() => undefined)
   return (await localDb().lessons.where('organisationId').equals(organisationId).toArray()).sort((a, b) => b.updatedAt - a.updatedAt)
 }
 
