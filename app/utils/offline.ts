@@ -7,7 +7,7 @@ import type { OfflineLearner, OfflineVersion, LocalLesson, LessonStage } from '.
 /** Screens that work from the tablet alone after one online visit (DESIGN.md §4). */
 export function worksOffline(path: string): boolean {
   const clean = path.length > 1 ? path.replace(/\/+$/, '') : path
-  return clean === '/' || clean === '/needs-connection' || clean === '/lessons' || clean.startsWith('/lessons/') || clean === '/checks' || clean.startsWith('/checks/') || clean === '/checks' || clean.startsWith('/checks/')
+  return clean === '/' || clean === '/needs-connection' || clean === '/lessons' || clean.startsWith('/lessons/') || clean === '/checks' || clean.startsWith('/checks/')
     // A learner's study cards and records, kept on the device by app/utils/study-cards.ts.
     || clean === '/study' || clean.startsWith('/study/')
 }
