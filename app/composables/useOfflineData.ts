@@ -7,6 +7,7 @@ import { lessonsOf, localDb, offlineLearners, offlineVersions, storePhoto, store
 import { keepForLessons, photoIdsOf, serverUnreachable, statusOf, toOfflineLearner, toOfflineVersion, type LearnerAnswer, type TabletDataSummary, type VersionAnswer } from '~/utils/offline'
 import { prunePhotos, saveTabletDataSummary, storedPhotoKeys, tabletDataSummary } from '~/utils/offline-store'
 import { downloadRefreshers } from '~/utils/refresher-store'
+import { checksOf } from '~/utils/local-checks'
 
 /** As much of a GET /api/jobs row as the tablet needs. */
 interface JobRow { published: { id: string } | null }
@@ -71,10 +72,11 @@ export function useOfflineData() {
     state.value.progress = 'Downloading the roster…'
     const roster = (await $fetch<LearnerAnswer[]>('/api/learners')).map(l => toOfflineLearner(l, organisationId))
 
-    // Keep what lessons on this tablet still point to, then replace the rest in one transaction.
-    const [storedVersions, storedLearners, lessons] = await Promise.all([offlineVersions(organisationId), offlineLearners(organisationId), lessonsOf(organisationId)])
+    // Keep what lessons and spot checks on this tablet still point to (a version retired since
+    // they started), then replace the rest in one transaction.
+    const [storedVersions, storedLearners, lessons, checks] = await Promise.all([offlineVersions(organisationId), offlineLearners(organisationId), lessonsOf(organisationId), checksOf(organisationId)])
     const fresh = versions.filter(Boolean)
-    const merged = keepForLessons({ versions: fresh, learners: roster }, { versions: storedVersions, learners: storedLearners }, lessons)
+    const merged = keepForLessons({ versions: fresh, learners: roster }, { versions: storedVersions, learners: storedLearners }, [...lessons, ...checks])
     await storeReferenceData(organisationId, merged)
     // Who was trained on an older version, so a refresher can start offline. A lost connection
     // stops the refresh; any other refusal keeps the previous copy.
