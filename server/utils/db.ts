@@ -7,6 +7,7 @@ import { createClient } from '@libsql/client'
 import { drizzle } from 'drizzle-orm/libsql'
 import { migrate } from 'drizzle-orm/libsql/migrator'
 import * as schema from '../db/schema'
+import { checkpointInBackground, WAL_AUTOCHECKPOINT_PAGES } from './wal-checkpoint'
 
 export type Db = ReturnType<typeof drizzle<typeof schema>>
 
@@ -45,6 +46,13 @@ async function open(): Promise<Db> {
   if (url.startsWith('file:')) {
     // WAL is a property of the database file, so one connection setting it is enough.
     await client.execute('PRAGMA journal_mode = WAL')
+    const path = url.slice('file:'.length).split('?')[0]!
+    if (path && path !== ':memory:') {
+      // Checkpoints off the event loop (wal-checkpoint.ts); this connection is the one plain
+      // statements reuse most (the pool hands back the last one returned).
+      await client.execute(`PRAGMA wal_autocheckpoint = ${WAL_AUTOCHECKPOINT_PAGES}`)
+      checkpointInBackground(client, path)
+    }
   }
   const db = drizzle(client, { schema })
   await migrate(db, { migrationsFolder: migrationsFolder() })
