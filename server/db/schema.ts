@@ -207,6 +207,8 @@ export const lessons = sqliteTable('lessons', {
 }, t => [
   index('lessons_org_idx').on(t.organisationId),
   index('lessons_learner_idx').on(t.organisationId, t.learnerId),
+  // The records list, newest first: read in this order, so a page stops after its rows (records-query.ts).
+  index('lessons_org_started_idx').on(t.organisationId, t.startedAt, t.id),
 ])
 
 // Append-only marks and moves of a lesson (DESIGN.md §7). Undo is another event.
@@ -301,6 +303,7 @@ export const spotChecks = sqliteTable('spot_checks', {
 }, t => [
   index('spot_checks_org_idx').on(t.organisationId),
   index('spot_checks_learner_job_idx').on(t.organisationId, t.learnerId, t.jobId),
+  index('spot_checks_org_started_idx').on(t.organisationId, t.startedAt, t.id),
 ])
 
 // Append-only marks of a spot check; the same rules as lesson_events.

@@ -1,0 +1,2 @@
+CREATE INDEX `lessons_org_started_idx` ON `lessons` (`organisation_id`,`started_at`,`id`);--> statement-breakpoint
+CREATE INDEX `spot_checks_org_started_idx` ON `spot_checks` (`organisation_id`,`started_at`,`id`);
