@@ -100,11 +100,12 @@ function pageQuery(organisationId: string, filter: RecordsFilter, limit: number,
   const dir = filter.dir ?? (filter.sort === 'date' ? 'desc' : 'asc')
   const order = ORDER[filter.sort](dir)
   // The page comes back as one JSON text (json_group_array) rather than a row object per row, which
-  // the client builds at several times the cost; `pos` keeps the order, since SQLite does not
-  // promise that an aggregate keeps its subquery's order.
+  // the client builds at several times the cost; the aggregate's own ORDER BY (SQLite 3.44+) keeps
+  // the order, since SQLite does not promise that an aggregate keeps its subquery's order (a
+  // row_number() window did the same at half the statement's time).
   return {
-    sql: `select json_group_array(json_array(${JSON_COLUMNS.map(([, expr]) => expr).join(', ')})) as j
-      from (select r.*, row_number() over (order by ${order}) as pos from (select r.* from (${union.sql}) r order by ${order} limit ? offset ?) r) r
+    sql: `select json_group_array(json_array(${JSON_COLUMNS.map(([, expr]) => expr).join(', ')}) order by ${order}) as j
+      from (select r.* from (${union.sql}) r order by ${order} limit ? offset ?) r
       cross join learners le on le.id = r.learner_id
       cross join jobs j on j.id = r.job_id
       cross join breakdown_versions v on v.id = r.version_id
@@ -119,7 +120,7 @@ function pageQuery(organisationId: string, filter: RecordsFilter, limit: number,
 }
 
 const JSON_COLUMNS: Array<[string, string]> = [
-  ['pos', 'r.pos'], ['kind', 'r.kind'], ['id', 'r.id'], ['date', 'r.date'], ['finished_at', 'r.finished_at'], ['learner_id', 'r.learner_id'],
+  ['kind', 'r.kind'], ['id', 'r.id'], ['date', 'r.date'], ['finished_at', 'r.finished_at'], ['learner_id', 'r.learner_id'],
   ['job_id', 'r.job_id'], ['version_id', 'r.version_id'], ['coach_user_id', 'r.coach_user_id'], ['outcome', 'r.outcome'],
   ['learner_name', 'le.name'], ['learner_reference', 'le.reference'], ['work_area_name', 'wa.name'], ['job_title', 'j.title'],
   ['version_number', 'v.number'], ['coach_name', 'u.name'], ['readiness', 's.readiness'], ['recall', 's.recall'],
@@ -161,8 +162,7 @@ function toRow(v: unknown[]): RecordRow {
 function rowsOf(result: { rows: ArrayLike<Record<string, unknown>> }): RecordRow[] {
   const list = JSON.parse(String(result.rows[0]?.j ?? '[]')) as unknown[][]
   // Read by place rather than through an object per row built first (about 0.1 ms of 0.3 ms of JavaScript per page).
-  const pos = AT.pos!
-  return list.sort((a, b) => Number(a[pos]) - Number(b[pos])).map(toRow)
+  return list.map(toRow)
 }
 
 /** One page of records and the number matching the filters, in one statement. */
