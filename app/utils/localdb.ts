@@ -2,6 +2,7 @@
 // It holds what a lesson needs with the network off: published breakdowns and their photos,
 // the roster, the device id, lessons and the outbox of lesson events (DESIGN.md §7).
 import Dexie, { type EntityTable, type ObservabilitySet, type RangeSetConstructor } from 'dexie'
+import * as dexieModule from 'dexie'
 import type { BreakdownContent } from '#shared/schemas/breakdown'
 import type { LessonEvent } from '#shared/utils/lesson-events'
 // crypto.randomUUID exists only in secure contexts; a tablet on a plain-http site address still needs ids.
@@ -259,9 +260,10 @@ function writeEvent(store: FourfoldDb, input: NewEvent, device: string, now: num
 
 /** Tells Dexie's observers (liveQuery, the outbox counts, other tabs) what the tap wrote, as a write through Dexie would. */
 function announceEvent(store: FourfoldDb, e: LocalEvent) {
-  // Dexie's own RangeSet, read from the default export at run time: the server's (CommonJS) dexie
-  // has no named RangeSet export, and the bundler would turn a plain property read into one.
-  const RangeSet = Reflect.get(Dexie, 'RangeSet') as RangeSetConstructor
+  // Dexie's own RangeSet, looked up at run time: the browser's ES module build exports it by name
+  // only, the server's CommonJS build has it only on the default export (and a plain named import
+  // or property read would be bundled into an import the server cannot link).
+  const RangeSet = (Reflect.get(dexieModule, 'RangeSet') ?? Reflect.get(Dexie, 'RangeSet')) as RangeSetConstructor
   const events = `idb://${store.name}/events/`
   const meta = `idb://${store.name}/meta/`
   const parts: ObservabilitySet = {
