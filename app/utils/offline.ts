@@ -20,7 +20,6 @@ export function screenNeedingConnection(path: string): string {
   if (first === 'versions') return third === 'edit' ? 'The breakdown editor' : third === 'print' ? 'The printable breakdown' : 'This breakdown'
   if (first === 'settings') return second === 'members' ? 'Members' : 'Settings'
   if (first === 'plan') return 'The plan'
-  if (first === 'plan') return 'The plan'
   if (first === 'account') return 'Your account'
   return 'This screen'
 }
