@@ -9,51 +9,18 @@
 //   date are computed with shared/utils (check-state.ts) and stored; change_feed gets 'check'.
 // Checks are few and small beside lesson marks, so this path favours plain code over speed.
 import type { Client, InStatement, Transaction } from '@libsql/client'
-import type { z } from 'zod'
 import { syncCheckEventSchema, syncCheckSchema, type SyncCheck, type SyncCheckEvent } from '../../shared/schemas/sync'
 import type { BreakdownContent } from '../../shared/schemas/breakdown'
 import { elementsById } from '../../shared/utils/check-elements'
 import { checkResult, type CheckEvent } from '../../shared/utils/check-state'
-import type { Rejection } from './sync-merge'
+import { VALIDATE_CHUNK, clockIsNewer, firstIssue, inChunks, pinnedToOrganisation, pushedItemId, selectWhereIn, yieldToLoop, type Rejection, type SyncClock } from './sync-batch'
 /** What the server computed for a finished check. */
 export interface CheckServerResult { outcome: 'clean' | 'stay' | 'reteach' | null, nextIntervalIndex: number | null, nextDueAt: number | null }
-
-const CHUNK = 500
-const yieldToLoop = () => new Promise<void>(resolve => setImmediate(resolve))
-
-function chunks<T>(items: readonly T[], size = CHUNK): T[][] {
-  const out: T[][] = []
-  for (let i = 0; i < items.length; i += size) out.push(items.slice(i, i + size))
-  return out
-}
-
-async function selectIn(runner: Client | Transaction, sqlBefore: string, ids: readonly string[], extraArgs: Array<string | number> = []) {
-  const rows: Record<string, unknown>[] = []
-  for (const [i, part] of chunks([...new Set(ids)]).entries()) {
-    if (i > 0) await yieldToLoop()
-    const rs = await runner.execute({ sql: `${sqlBefore} (${part.map(() => '?').join(',')})`, args: [...extraArgs, ...part] })
-    rows.push(...(rs.rows as unknown as Record<string, unknown>[]))
-  }
-  return rows
-}
-
-function describeIssues(error: z.ZodError): string {
-  const first = error.issues[0]
-  return first ? `${first.path.join('.') || 'item'}: ${first.message}` : 'not valid'
-}
-
-function idOf(item: unknown): string {
-  const id = (item as { id?: unknown } | null)?.id
-  return typeof id === 'string' ? id.slice(0, 80) : '(no id)'
-}
 
 /** Whether a pushed event is a spot check's mark (it names checkId) rather than a lesson's. */
 export function isCheckEventItem(item: unknown): boolean {
   return typeof item === 'object' && item !== null && 'checkId' in item
 }
-
-/** Items validated between two yields to the event loop (about 2 ms of zod), as for lessons. */
-const VALIDATE_CHUNK = 250
 
 /** Each check and check mark on its own: shape, sender, duplicates inside the push. */
 export async function validateCheckItems(deviceId: string, checkItems: readonly unknown[], eventItems: readonly unknown[], rejected: Rejection[]) {
@@ -63,19 +30,19 @@ export async function validateCheckItems(deviceId: string, checkItems: readonly 
     if (++validated % VALIDATE_CHUNK === 0) await yieldToLoop()
     const r = syncCheckSchema.safeParse(item)
     if (r.success) checks.push(r.data)
-    else rejected.push({ id: idOf(item), reason: `Spot check not valid — ${describeIssues(r.error)}` })
+    else rejected.push({ id: pushedItemId(item), reason: `Spot check not valid — ${firstIssue(r.error)}` })
   }
   const events: SyncCheckEvent[] = []
   const seen = new Map<string, string>()
   for (const item of eventItems) {
     if (++validated % VALIDATE_CHUNK === 0) await yieldToLoop()
     if ((item as { lessonId?: unknown }).lessonId !== undefined) {
-      rejected.push({ id: idOf(item), reason: 'A mark names either a lesson or a spot check, not both.' })
+      rejected.push({ id: pushedItemId(item), reason: 'A mark names either a lesson or a spot check, not both.' })
       continue
     }
     const r = syncCheckEventSchema.safeParse(item)
     if (!r.success) {
-      rejected.push({ id: idOf(item), reason: `Spot check mark not valid — ${describeIssues(r.error)}` })
+      rejected.push({ id: pushedItemId(item), reason: `Spot check mark not valid — ${firstIssue(r.error)}` })
       continue
     }
     const e = r.data
@@ -103,42 +70,21 @@ export async function validateCheckItems(deviceId: string, checkItems: readonly 
 export async function checksOfOrganisation(client: Client, organisationId: string, checks: SyncCheck[], rejected: Rejection[]) {
   const contents = new Map<string, BreakdownContent>()
   if (!checks.length) return { checks, contents }
-  const idsIn = async (table: string, ids: string[]) => new Set((await selectIn(client, `select id from ${table} where organisation_id = ? and id in`, ids, [organisationId])).map(r => r.id as string))
-  const learnerIds = await idsIn('learners', checks.map(c => c.learnerId))
-  const jobIds = await idsIn('jobs', checks.map(c => c.jobId))
-  const versions = new Map((await selectIn(client, 'select id, job_id, status, content from breakdown_versions where organisation_id = ? and id in', checks.map(c => c.versionId), [organisationId])).map(r => [r.id as string, r]))
-  const coachIds = new Set((await selectIn(client, 'select user_id from memberships where organisation_id = ? and role in (\'admin\', \'coach\') and user_id in', checks.map(c => c.coachUserId), [organisationId])).map(r => r.user_id as string))
+  const pinned = await pinnedToOrganisation(client, organisationId, checks, 'A spot check must use a published breakdown, not a draft.', rejected, true)
   const elementsOfVersion = new Map<string, Set<string>>()
-  const valid = checks.filter((c) => {
-    const v = versions.get(c.versionId)
-    let reason = !learnerIds.has(c.learnerId)
-      ? 'The learner is not in this organisation\'s roster.'
-      : !jobIds.has(c.jobId)
-          ? 'The job is not one of this organisation\'s jobs.'
-          : !v || v.job_id !== c.jobId
-              ? 'The breakdown version does not belong to this job.'
-              : v.status === 'draft'
-                ? 'A spot check must use a published breakdown, not a draft.'
-                : !coachIds.has(c.coachUserId)
-                    ? 'The coach is not a coach or admin of this organisation.'
-                    : ''
-    if (!reason) {
-      if (!contents.has(c.versionId)) {
-        const content = JSON.parse(String(v!.content)) as BreakdownContent
-        contents.set(c.versionId, content)
-        elementsOfVersion.set(c.versionId, new Set(elementsById(content).keys()))
-      }
-      const known = elementsOfVersion.get(c.versionId)!
-      const unknown = c.elements.filter(id => !known.has(id))
-      if (unknown.length) reason = `${unknown.length === 1 ? 'One element is' : `${unknown.length} elements are`} not in this breakdown version (${unknown[0]}); choose the elements again from the breakdown.`
+  const valid = pinned.valid.filter((c) => {
+    if (!contents.has(c.versionId)) {
+      const content = JSON.parse(String(pinned.versions.get(c.versionId)!.content)) as BreakdownContent
+      contents.set(c.versionId, content)
+      elementsOfVersion.set(c.versionId, new Set(elementsById(content).keys()))
     }
-    if (reason) rejected.push({ id: c.id, reason })
-    return !reason
+    const known = elementsOfVersion.get(c.versionId)!
+    const unknown = c.elements.filter(id => !known.has(id))
+    if (unknown.length) rejected.push({ id: c.id, reason: `${unknown.length === 1 ? 'One element is' : `${unknown.length} elements are`} not in this breakdown version (${unknown[0]}); choose the elements again from the breakdown.` })
+    return !unknown.length
   })
   return { checks: valid, contents }
 }
-
-type Clock = [number, number, string, string]
 
 function checkFields(c: { coachUserId: string | null, startedAt: number, elements: readonly string[], note: string, finishedAt: number | null, intervalIndex: number }) {
   return JSON.stringify([c.coachUserId, c.startedAt, c.elements, c.note, c.finishedAt, c.intervalIndex])
@@ -148,14 +94,9 @@ function storedCheckFields(row: Record<string, unknown>) {
   return checkFields({ coachUserId: row.coach_user_id as string | null, startedAt: Number(row.started_at), elements: JSON.parse(String(row.elements ?? '[]')) as string[], note: row.note as string, finishedAt: row.finished_at == null ? null : Number(row.finished_at), intervalIndex: Number(row.interval_index) })
 }
 
-/** Newer wins: finished before open, then client time, then device id, then the content itself. */
-function checkClock(finishedAt: number | null, updatedAt: number, deviceId: string, fields: string): Clock {
+/** A check's clock (see SyncClock): finished counts as closed. */
+function checkClock(finishedAt: number | null, updatedAt: number, deviceId: string, fields: string): SyncClock {
   return [finishedAt === null ? 0 : 1, updatedAt, deviceId, fields]
-}
-
-function newer(a: Clock, b: Clock) {
-  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return a[i]! > b[i]!
-  return false
 }
 
 function sameEvent(row: Record<string, unknown>, e: SyncCheckEvent) {
@@ -181,11 +122,11 @@ export async function writeChecks(tx: Transaction, organisationId: string, devic
   const newest = new Map<string, SyncCheck>()
   for (const c of checks) {
     const seen = newest.get(c.id)
-    if (!seen || newer(checkClock(c.finishedAt, c.updatedAt, deviceId, checkFields(c)), checkClock(seen.finishedAt, seen.updatedAt, deviceId, checkFields(seen)))) newest.set(c.id, c)
+    if (!seen || clockIsNewer(checkClock(c.finishedAt, c.updatedAt, deviceId, checkFields(c)), checkClock(seen.finishedAt, seen.updatedAt, deviceId, checkFields(seen)))) newest.set(c.id, c)
   }
   // A check that follows a lesson names one of this organisation's lessons of the same learner and job.
-  const lessons = new Map((await selectIn(tx, 'select id, learner_id, job_id from lessons where organisation_id = ? and id in', [...newest.values()].flatMap(c => (c.lessonId ? [c.lessonId] : [])), [organisationId])).map(r => [r.id as string, r]))
-  const existing = new Map((await selectIn(tx, 'select * from spot_checks where id in', [...newest.keys()])).map(r => [r.id as string, r]))
+  const lessons = new Map((await selectWhereIn(tx, 'select id, learner_id, job_id from lessons where organisation_id = ? and id in', [...newest.values()].flatMap(c => (c.lessonId ? [c.lessonId] : [])), '', [organisationId])).map(r => [r.id as string, r]))
+  const existing = new Map((await selectWhereIn(tx, 'select * from spot_checks where id in', [...newest.keys()])).map(r => [r.id as string, r]))
   const statements: InStatement[] = []
   for (const c of newest.values()) {
     if (c.lessonId) {
@@ -220,7 +161,7 @@ export async function writeChecks(tx: Transaction, organisationId: string, devic
     }
     const storedFinished = row.finished_at == null ? null : Number(row.finished_at)
     const storedClock = checkClock(storedFinished, Number(row.client_updated_at), row.updated_by_device as string, storedCheckFields(row))
-    if (newer(checkClock(c.finishedAt, c.updatedAt, deviceId, checkFields(c)), storedClock)) {
+    if (clockIsNewer(checkClock(c.finishedAt, c.updatedAt, deviceId, checkFields(c)), storedClock)) {
       // A finished copy always wins the clock, so an open copy never gets here over a finished one.
       statements.push({
         sql: 'update spot_checks set coach_user_id=?, started_at=?, elements=?, note=?, finished_at=?, interval_index=?, client_updated_at=?, updated_by_device=? where id=? and organisation_id=?',
@@ -235,11 +176,11 @@ export async function writeChecks(tx: Transaction, organisationId: string, devic
     }
     accepted.push(c.id)
   }
-  for (const part of chunks(statements, 200)) await tx.batch(part)
+  for (const part of inChunks(statements, 200)) await tx.batch(part)
 
   // Marks: by id, never overwritten; their check must be this organisation's.
-  const knownChecks = new Set((await selectIn(tx, 'select id from spot_checks where organisation_id = ? and id in', events.map(e => e.checkId), [organisationId])).map(r => r.id as string))
-  const stored = new Map((await selectIn(tx, 'select * from check_events where id in', events.map(e => e.id))).map(r => [r.id as string, r]))
+  const knownChecks = new Set((await selectWhereIn(tx, 'select id from spot_checks where organisation_id = ? and id in', events.map(e => e.checkId), '', [organisationId])).map(r => r.id as string))
+  const stored = new Map((await selectWhereIn(tx, 'select * from check_events where id in', events.map(e => e.id))).map(r => [r.id as string, r]))
   const fresh: SyncCheckEvent[] = []
   for (const e of events) {
     const row = stored.get(e.id)
@@ -254,7 +195,7 @@ export async function writeChecks(tx: Transaction, organisationId: string, devic
     }
     fresh.push(e)
   }
-  for (const part of chunks(fresh, 200)) {
+  for (const part of inChunks(fresh, 200)) {
     await tx.execute({
       sql: `insert into check_events (id, organisation_id, check_id, element_id, kind, value, client_time, device_id, seq, received_at) values ${part.map(() => '(?,?,?,?,?,?,?,?,?,?)').join(',')}`,
       args: part.flatMap(e => [e.id, organisationId, e.checkId, e.elementId, e.kind, e.value, e.clientTime, e.deviceId, e.seq, now]),
@@ -269,14 +210,14 @@ export async function writeChecks(tx: Transaction, organisationId: string, devic
 
   // Outcome and next date of every touched check, from all its stored marks.
   for (const checkId of touched) await storeCheckResult(tx, organisationId, checkId, contents)
-  for (const part of chunks([...touched])) {
+  for (const part of inChunks([...touched])) {
     await tx.execute({ sql: `insert into change_feed (organisation_id, entity, entity_id) values ${part.map(() => '(?, \'check\', ?)').join(',')}`, args: part.flatMap(id => [organisationId, id]) })
   }
 
   // What the server holds for every check this push named, so a replay hears the same answer.
   const named = [...new Set([...newest.keys(), ...events.map(e => e.checkId)])]
   const results: Record<string, CheckServerResult> = {}
-  for (const r of await selectIn(tx, 'select id, outcome, next_interval_index, next_due_at from spot_checks where organisation_id = ? and id in', named, [organisationId])) {
+  for (const r of await selectWhereIn(tx, 'select id, outcome, next_interval_index, next_due_at from spot_checks where organisation_id = ? and id in', named, '', [organisationId])) {
     results[r.id as string] = { outcome: (r.outcome as CheckServerResult['outcome']) ?? null, nextIntervalIndex: r.next_interval_index == null ? null : Number(r.next_interval_index), nextDueAt: r.next_due_at == null ? null : Number(r.next_due_at) }
   }
   return { results, written: { checks: checksWritten, checkEvents: eventsWritten } }

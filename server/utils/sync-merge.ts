@@ -11,62 +11,22 @@
 // native call is synchronous, so no single one may be long: events are validated, looked up,
 // inserted and read back for scoring in bounded chunks (DEVELOPERS.md, "Sync write path").
 import type { Client, InStatement, Transaction } from '@libsql/client'
-import type { z } from 'zod'
 import { syncEventSchema, syncLessonSchema, type SyncEvent, type SyncLesson } from '../../shared/schemas/sync'
 import type { BreakdownContent } from '../../shared/schemas/breakdown'
 import { replayLesson } from '../../shared/utils/lesson-state'
 import { focusContent } from '../../shared/utils/refresher'
 import { serialiseWrite } from './write-lock'
+import { VALIDATE_CHUNK, clockIsNewer, firstIssue, inChunks, pinnedToOrganisation, pushedItemId, selectWhereIn, yieldToLoop, type Rejection, type SyncClock } from './sync-batch'
 import { checksOfOrganisation, isCheckEventItem, validateCheckItems, writeChecks, type CheckServerResult } from './sync-checks'
 import type { LessonEvent } from '../../shared/utils/lesson-events'
 
-export interface Rejection { id: string, reason: string }
 export interface LessonScore { t1: number | null, t2: number | null, t3: number | null, t4: number | null, order: number | null, recall: number | null, readiness: 'ready' | 'another-pass', represent: unknown[] }
 export interface MergeResult { accepted: string[], rejected: Rejection[], scores: Record<string, LessonScore>, checks: Record<string, CheckServerResult>, cursor: number, written: { lessons: number, events: number, checks: number, checkEvents: number } }
 
-// SQLite allows 32,766 bound variables per statement. The chunks stay far below it because each
-// chunk is one synchronous native call that holds the event loop: a request waiting behind the
-// merge waits about one chunk per step it takes (a session read is several steps). Larger chunks
-// were measured to write hardly faster (2,900-row inserts: 3 % quicker, each statement 5× longer).
-const CHUNK = 500
 /** Event rows per multi-row insert (200 × 11 bound variables): about 2 ms per statement. */
 const INSERT_CHUNK = 200
-/** Items validated between two yields to the event loop (about 2 ms of zod). */
-const VALIDATE_CHUNK = 250
 /** Stored events read back per statement when a lesson is scored (about 1.5 ms). */
 const READ_CHUNK = 1000
-const yieldToLoop = () => new Promise<void>(resolve => setImmediate(resolve))
-
-function chunks<T>(items: readonly T[], size = CHUNK): T[][] {
-  const out: T[][] = []
-  for (let i = 0; i < items.length; i += size) out.push(items.slice(i, i + size))
-  return out
-}
-
-function placeholders(n: number) {
-  return Array.from({ length: n }, () => '?').join(',')
-}
-
-function describeIssues(error: z.ZodError): string {
-  const first = error.issues[0]
-  return first ? `${first.path.join('.') || 'item'}: ${first.message}` : 'not valid'
-}
-
-function idOf(item: unknown): string {
-  const id = (item as { id?: unknown } | null)?.id
-  return typeof id === 'string' ? id.slice(0, 80) : '(no id)'
-}
-
-async function selectIn(runner: Client | Transaction, sqlBefore: string, ids: readonly string[], sqlAfter = '', extraArgs: Array<string | number> = []) {
-  const rows: Record<string, unknown>[] = []
-  const parts = chunks([...new Set(ids)])
-  for (const [i, part] of parts.entries()) {
-    if (i > 0) await yieldToLoop()
-    const rs = await runner.execute({ sql: `${sqlBefore} (${placeholders(part.length)}) ${sqlAfter}`, args: [...extraArgs, ...part] })
-    rows.push(...(rs.rows as unknown as Record<string, unknown>[]))
-  }
-  return rows
-}
 
 /**
  * Rows of lesson_events come back as one JSON text per statement (json_group_array): the client
@@ -78,7 +38,7 @@ const EVENT_JSON = `json_group_array(json_array(${EVENT_COLUMNS.join(', ')}))`
 
 async function storedEventsById(tx: Transaction, ids: readonly string[]) {
   const byId = new Map<string, Record<string, unknown>>()
-  for (const row of await selectIn(tx, `select ${EVENT_JSON} as rows from lesson_events where id in`, ids)) {
+  for (const row of await selectWhereIn(tx, `select ${EVENT_JSON} as rows from lesson_events where id in`, ids)) {
     for (const values of JSON.parse(row.rows as string) as unknown[][]) {
       const [id, organisation_id, lesson_id, pass, element_id, kind, value, client_time, device_id, seq] = values
       byId.set(id as string, { id, organisation_id, lesson_id, pass, element_id, kind, value, client_time, device_id, seq })
@@ -87,20 +47,9 @@ async function storedEventsById(tx: Transaction, ids: readonly string[]) {
   return byId
 }
 
-type Clock = [number, number, string, string]
-
-/**
- * Newer wins: a signed-off state beats any open one, then the later client time, then the device
- * id, and last the content itself, so even two different states stamped in the same millisecond
- * on one tablet settle the same way whatever order they arrive in.
- */
-function lessonClock(l: { signedOffAt: number | null, updatedAt: number, deviceId: string }, fields: string): Clock {
+/** A lesson's clock (see SyncClock): signed off counts as closed. */
+function lessonClock(l: { signedOffAt: number | null, updatedAt: number, deviceId: string }, fields: string): SyncClock {
   return [l.signedOffAt ? 1 : 0, l.updatedAt, l.deviceId, fields]
-}
-
-function newer(a: Clock, b: Clock) {
-  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return a[i]! > b[i]!
-  return false
 }
 
 function mergeableFields(l: { coachUserId: string | null, place: string, startedAt: number, prepare: unknown, helper: string, decision: string | null, signedOffAt: number | null, stageSeconds: unknown, focus: readonly string[] | null }) {
@@ -131,7 +80,7 @@ export async function mergePush(client: Client, organisationId: string, deviceId
     if (++validated % VALIDATE_CHUNK === 0) await yieldToLoop()
     const r = syncLessonSchema.safeParse(item)
     if (r.success) lessons.push(r.data)
-    else rejected.push({ id: idOf(item), reason: `Lesson not valid — ${describeIssues(r.error)}` })
+    else rejected.push({ id: pushedItemId(item), reason: `Lesson not valid — ${firstIssue(r.error)}` })
   }
   const events: SyncEvent[] = []
   const checkEventItems: unknown[] = []
@@ -145,7 +94,7 @@ export async function mergePush(client: Client, organisationId: string, deviceId
     }
     const r = syncEventSchema.safeParse(item)
     if (!r.success) {
-      rejected.push({ id: idOf(item), reason: `Mark not valid — ${describeIssues(r.error)}` })
+      rejected.push({ id: pushedItemId(item), reason: `Mark not valid — ${firstIssue(r.error)}` })
       continue
     }
     const e = r.data
@@ -164,29 +113,7 @@ export async function mergePush(client: Client, organisationId: string, deviceId
   const checkItems = await validateCheckItems(deviceId, body.checks, checkEventItems, rejected)
 
   // 2. Every id a lesson names must belong to this organisation.
-  const idsIn = async (table: string, ids: string[], extra = '') => new Set((await selectIn(client, `select id from ${table} where organisation_id = ? ${extra} and id in`, ids, '', [organisationId])).map(r => r.id as string))
-  const learnerIds = await idsIn('learners', lessons.map(l => l.learnerId))
-  const jobIds = await idsIn('jobs', lessons.map(l => l.jobId))
-  const versionRows = await selectIn(client, 'select id, job_id, status from breakdown_versions where organisation_id = ? and id in', lessons.map(l => l.versionId), '', [organisationId])
-  const versionsById = new Map(versionRows.map(r => [r.id as string, r]))
-  const coachRows = await selectIn(client, 'select user_id from memberships where organisation_id = ? and role in (\'admin\', \'coach\') and user_id in', lessons.map(l => l.coachUserId), '', [organisationId])
-  const coachIds = new Set(coachRows.map(r => r.user_id as string))
-  const validLessons = lessons.filter((l) => {
-    const v = versionsById.get(l.versionId)
-    const reason = !learnerIds.has(l.learnerId)
-      ? 'The learner is not in this organisation\'s roster.'
-      : !jobIds.has(l.jobId)
-          ? 'The job is not one of this organisation\'s jobs.'
-          : !v || v.job_id !== l.jobId
-              ? 'The breakdown version does not belong to this job.'
-              : v.status === 'draft'
-                ? 'A lesson must be pinned to a published breakdown, not a draft.'
-                : !coachIds.has(l.coachUserId)
-                    ? 'The coach is not a coach or admin of this organisation.'
-                    : ''
-    if (reason) rejected.push({ id: l.id, reason })
-    return !reason
-  })
+  const { valid: validLessons } = await pinnedToOrganisation(client, organisationId, lessons, 'A lesson must be pinned to a published breakdown, not a draft.', rejected)
   const validChecks = await checksOfOrganisation(client, organisationId, checkItems.checks, rejected)
 
   return serialiseWrite(async () => {
@@ -218,10 +145,10 @@ async function writeMerge(tx: Transaction, organisationId: string, deviceId: str
   for (const l of lessons) {
     const seen = newest.get(l.id)
     const ack = seen && ackKey(seen.acknowledgement) > ackKey(l.acknowledgement) ? seen.acknowledgement : l.acknowledgement
-    const winner = !seen || newer(lessonClock({ ...l, deviceId }, mergeableFields(l)), lessonClock({ ...seen, deviceId }, mergeableFields(seen))) ? l : seen
+    const winner = !seen || clockIsNewer(lessonClock({ ...l, deviceId }, mergeableFields(l)), lessonClock({ ...seen, deviceId }, mergeableFields(seen))) ? l : seen
     newest.set(l.id, { ...winner, acknowledgement: ack })
   }
-  const existing = new Map((await selectIn(tx, 'select * from lessons where id in', [...newest.keys()])).map(r => [r.id as string, r]))
+  const existing = new Map((await selectWhereIn(tx, 'select * from lessons where id in', [...newest.keys()])).map(r => [r.id as string, r]))
   const statements: InStatement[] = []
   for (const l of newest.values()) {
     const row = existing.get(l.id)
@@ -248,7 +175,7 @@ async function writeMerge(tx: Transaction, organisationId: string, deviceId: str
     const stored = { signedOffAt: row.signed_off_at as number | null, updatedAt: Number(row.client_updated_at), deviceId: row.updated_by_device as string }
     const storedAck = row.acknowledgement ? JSON.parse(row.acknowledgement as string) as { at: number, name: string } : null
     const ackWins = ackKey(l.acknowledgement) > ackKey(storedAck)
-    if (newer(lessonClock({ signedOffAt: l.signedOffAt, updatedAt: l.updatedAt, deviceId }, mergeableFields(l)), lessonClock(stored, storedFields(row)))) {
+    if (clockIsNewer(lessonClock({ signedOffAt: l.signedOffAt, updatedAt: l.updatedAt, deviceId }, mergeableFields(l)), lessonClock(stored, storedFields(row)))) {
       // A signed-off copy always wins the clock, so an open copy never gets here over a signed-off one.
       const ack = ackWins ? l.acknowledgement : storedAck
       statements.push({
@@ -271,13 +198,13 @@ async function writeMerge(tx: Transaction, organisationId: string, deviceId: str
     }
     accepted.push(l.id)
   }
-  for (const part of chunks(statements, 200)) {
+  for (const part of inChunks(statements, 200)) {
     await tx.batch(part)
     await yieldToLoop()
   }
 
   // 4. Events: by id, never overwritten.
-  const knownLessons = new Set((await selectIn(tx, 'select id from lessons where organisation_id = ? and id in', events.map(e => e.lessonId), '', [organisationId])).map(r => r.id as string))
+  const knownLessons = new Set((await selectWhereIn(tx, 'select id from lessons where organisation_id = ? and id in', events.map(e => e.lessonId), '', [organisationId])).map(r => r.id as string))
   const existingEvents = await storedEventsById(tx, events.map(e => e.id))
   const fresh: SyncEvent[] = []
   for (const e of events) {
@@ -309,7 +236,7 @@ async function writeMerge(tx: Transaction, organisationId: string, deviceId: str
     storedEvents.set(lessonId, await readLessonEvents(tx, organisationId, lessonId))
   }
 
-  for (const part of chunks(fresh, INSERT_CHUNK)) {
+  for (const part of inChunks(fresh, INSERT_CHUNK)) {
     await tx.execute({
       sql: `insert into lesson_events (id, organisation_id, lesson_id, pass, element_id, kind, value, client_time, device_id, seq, received_at) values ${part.map(() => '(?,?,?,?,?,?,?,?,?,?,?)').join(',')}`,
       args: part.flatMap(e => [e.id, organisationId, e.lessonId, e.pass, e.elementId, e.kind, e.value, e.clientTime, e.deviceId, e.seq, now]),
@@ -331,7 +258,7 @@ async function writeMerge(tx: Transaction, organisationId: string, deviceId: str
     scores[lessonId] = await storeScore(tx, organisationId, lessonId, added ? stored.concat(added) : stored, now)
     await yieldToLoop()
   }
-  for (const part of chunks([...feed])) {
+  for (const part of inChunks([...feed])) {
     await tx.execute({ sql: `insert into change_feed (organisation_id, entity, entity_id) values ${part.map(() => '(?, \'lesson\', ?)').join(',')}`, args: part.flatMap(id => [organisationId, id]) })
   }
   const cursor = await feedTop(tx, organisationId)
