@@ -6,6 +6,7 @@ import type { InValue } from '@libsql/client'
 import { dayBounds, trainingCell, type TrainingCell, type TrainingFacts } from '../../shared/utils/training-status'
 import type { PlanReason } from '../../shared/types/plan'
 import { nextCheckDate } from '../../shared/utils/spot-check-schedule'
+import { organisationCache } from './organisation-cache'
 
 export interface TrainingRow extends TrainingCell {
   learnerId: string
@@ -44,8 +45,20 @@ function parseFocus(value: unknown): string[] | null {
 
 const num = (v: unknown) => (v == null ? null : Number(v))
 
+// The whole organisation's rows are read by every tablet pull (due checks), the plan, the roster
+// summary and the digest: derived once per change of the organisation's data and day, like the plan
+// (organisation-cache.ts: checked against a database stamp on every call). The cells depend on the
+// day only (due today, late), never on the time of day. A filtered call reads the database directly.
+const wholeOrganisation = organisationCache<readonly TrainingRow[]>(8)
+
 /** Every learner × job pair that has a plan item, a lesson or a check, for one organisation (archived learners and jobs included; callers leave them out). */
 export async function trainingRows(organisationId: string, filter: TrainingFilter = {}, now: number = Date.now()): Promise<TrainingRow[]> {
+  if (filter.learnerIds || filter.jobIds) return loadTrainingRows(organisationId, filter, now)
+  // A copy of the list, so a caller's sort never reorders the shared one; the rows are frozen.
+  return [...await wholeOrganisation.get(organisationId, now, async () => Object.freeze((await loadTrainingRows(organisationId, {}, now)).map(r => Object.freeze(r))))]
+}
+
+async function loadTrainingRows(organisationId: string, filter: TrainingFilter, now: number): Promise<TrainingRow[]> {
   const db = await useDb()
   const clauses = (learnerCol: string, jobCol: string) => {
     const l = idClause(learnerCol, filter.learnerIds)
