@@ -4,7 +4,9 @@ import { execSync } from 'node:child_process'
 import { existsSync } from 'node:fs'
 
 export default function setup() {
-  if (process.env.FOURFOLD_BUILT === '1' && existsSync('.output/server/index.mjs')) return
+  const output = process.env.FOURFOLD_OUTPUT || '.output'
+  if (process.env.FOURFOLD_BUILT === '1' && existsSync(`${output}/server/index.mjs`)) return
+  if (process.env.FOURFOLD_OUTPUT) throw new Error(`FOURFOLD_OUTPUT=${output} holds no build (server/index.mjs)`)
   execSync('npx nuxt build', { stdio: 'inherit', env: { ...process.env, NODE_ENV: 'production' } })
   process.env.FOURFOLD_BUILT = '1'
 }

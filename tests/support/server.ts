@@ -57,7 +57,9 @@ export async function startServer(options: { env?: Record<string, string | undef
     ...options.env,
   }
   // A key given as undefined means: leave it unset, so the build's default applies.
-  const child = spawn(process.execPath, [resolve('.output/server/index.mjs')], {
+  // FOURFOLD_OUTPUT: a private copy of a build, so a rebuild in the shared tree cannot pull the
+  // files from under a running test (DEVELOPERS.md "Running things").
+  const child = spawn(process.execPath, [resolve(process.env.FOURFOLD_OUTPUT || '.output', 'server/index.mjs')], {
     env: Object.fromEntries(Object.entries(env).filter(([, value]) => value !== undefined)) as NodeJS.ProcessEnv,
     stdio: ['ignore', 'pipe', 'pipe'],
   })
