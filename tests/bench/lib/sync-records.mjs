@@ -128,14 +128,14 @@ export function makeTablet(ids, content, seed) {
   }
 
   /**
-   * `count` pushes of exactly `events` events in LESSONS_PER_PUSH lessons; CONTINUED_LESSONS of
-   * each push's lessons go on in the next push, the others are signed off in theirs.
+   * A tablet that keeps recording: each next(events) is the next push of exactly `events` events
+   * in LESSONS_PER_PUSH lessons; CONTINUED_LESSONS of each push's lessons go on in the next push,
+   * the others are signed off in theirs (all of them with `{ last: true }`).
    */
-  function pushes(count, events, learnerIds) {
-    const list = []
+  function pushSource(learnerIds) {
     let carried = []
     let nextLearner = 0
-    for (let p = 0; p < count; p++) {
+    return function next(events, { last = false } = {}) {
       const lessons = [...carried]
       while (lessons.length < LESSONS_PER_PUSH) lessons.push(startLesson(learnerIds[nextLearner++ % learnerIds.length]))
       const share = Math.floor(events / lessons.length)
@@ -146,13 +146,18 @@ export function makeTablet(ids, content, seed) {
         // Whole passes, trimmed to the share, so the push has exactly `events` events.
         bodyEvents.push(...record(lesson, want).slice(0, want))
       })
-      carried = p < count - 1 ? lessons.slice(-CONTINUED_LESSONS) : []
+      carried = last ? [] : lessons.slice(-CONTINUED_LESSONS)
       for (const lesson of lessons) bodyLessons.push(lessonBody(lesson, !carried.includes(lesson)))
       const body = { deviceId, lessons: bodyLessons, events: bodyEvents, checks: [] }
-      list.push({ body, json: JSON.stringify(body) })
+      return { body, json: JSON.stringify(body) }
     }
-    return list
   }
 
-  return { deviceId, pushes }
+  /** `count` pushes of a pushSource, the last one signing off every lesson. */
+  function pushes(count, events, learnerIds) {
+    const next = pushSource(learnerIds)
+    return Array.from({ length: count }, (_, p) => next(events, { last: p === count - 1 }))
+  }
+
+  return { deviceId, pushes, pushSource }
 }
