@@ -336,6 +336,14 @@ export const digestSends = sqliteTable('digest_sends', {
   sentAt: integer('sent_at').notNull(),
 }, t => [uniqueIndex('digest_sends_user_day_unique').on(t.userId, t.day)])
 
+// Sessions ended by signing out. A session is a sealed cookie the server keeps no copy of, so a copy
+// of one would work until it expires; requireSignedIn refuses the ids listed here. A row is needed
+// only until the session would have expired anyway (expires_at), and is pruned after that.
+export const endedSessions = sqliteTable('ended_sessions', {
+  sessionId: text('session_id').primaryKey(),
+  expiresAt: integer('expires_at').notNull(),
+}, t => [index('ended_sessions_expires_idx').on(t.expiresAt)])
+
 export type PlanItem = typeof planItems.$inferSelect
 export type SpotCheck = typeof spotChecks.$inferSelect
 export type CheckEventRow = typeof checkEvents.$inferSelect
