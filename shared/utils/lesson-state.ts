@@ -69,13 +69,20 @@ export function replayLesson(events: readonly LessonEvent[], content: BreakdownC
     return p
   }
 
+  // Each pass type's elements once, not once per event: a lesson can hold thousands of events.
+  const idsOfType = new Map<PassType, Set<string>>()
+  const idsOf = (type: PassType) => {
+    let ids = idsOfType.get(type)
+    if (!ids) idsOfType.set(type, ids = new Set(passElementIds(type, elements)))
+    return ids
+  }
+
   for (const e of effectiveEvents(events)) {
     // A second coach's marks are compared with these (shared/utils/agreement.ts), never scored,
     // and must not even open a pass of the lesson.
     if (e.kind === 'undo' || e.kind === 'observer-mark') continue
     const p = pass(e.pass)
     if (!p) continue
-    const ids = passElementIds(p.type, elements)
     switch (e.kind) {
       case 'pass-open':
         break
@@ -83,10 +90,10 @@ export function replayLesson(events: readonly LessonEvent[], content: BreakdownC
         p.closed = true
         break
       case 'mark':
-        if (e.elementId && ids.includes(e.elementId) && isMarkValue(e.value) && p.type.startsWith('T')) p.marks.set(e.elementId, e.value)
+        if (e.elementId && idsOf(p.type).has(e.elementId) && isMarkValue(e.value) && p.type.startsWith('T')) p.marks.set(e.elementId, e.value)
         break
       case 'present':
-        if (e.elementId && ids.includes(e.elementId) && p.type.startsWith('P')) p.presented.add(e.elementId)
+        if (e.elementId && idsOf(p.type).has(e.elementId) && p.type.startsWith('P')) p.presented.add(e.elementId)
         break
       case 'order':
         if (p.type === 'T2' && e.elementId && stepOrder.includes(e.elementId) && !p.recited.includes(e.elementId)) p.recited.push(e.elementId)
