@@ -15,16 +15,17 @@
 // A table is printed for people; the very last line is one JSON object (DESIGN §6).
 import { spawn } from 'node:child_process'
 import { randomBytes, randomUUID } from 'node:crypto'
-import { existsSync, readFileSync, rmSync, statSync } from 'node:fs'
-import { mkdir, mkdtemp, rm, symlink, writeFile } from 'node:fs/promises'
+import { existsSync, rmSync, statSync } from 'node:fs'
+import { mkdtemp, rm } from 'node:fs/promises'
 import { createServer } from 'node:net'
 import { loadavg, tmpdir } from 'node:os'
 import { dirname, join, resolve } from 'node:path'
 import { fileURLToPath } from 'node:url'
-import { gzipSync } from 'node:zlib'
-import { chromium } from 'playwright-core'
 import { build as viteBuild } from 'vite'
+import { BARE_HEADING, buildBareNuxt } from './lib/bare-nuxt.mjs'
 import { buildLockHeld } from './lib/build.mjs'
+import { cleanUp as cleanUpLib } from './lib/cleanup.mjs'
+import { gzipKiB, launchChromium, scriptsLoadedBy } from './lib/page-scripts.mjs'
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '../..')
 const LOCK = '/tmp/fourfold-build.lock'
@@ -62,6 +63,8 @@ let browser
 
 async function cleanUp() {
   await browser?.close().catch(() => undefined)
+  // The bare build's folder and process are tracked by the shared lib.
+  await cleanUpLib()
   await Promise.all([...children].map(stopChild))
   await Promise.all([...tempDirs].map(async (dir) => {
     await rm(dir, { recursive: true, force: true })
@@ -131,27 +134,9 @@ async function appBuild() {
   return { output, how }
 }
 
-/** A Nuxt app with one page and nothing else, on the project's own installed nuxt. */
+/** The bare one-page Nuxt app (tests/bench/lib/bare-nuxt.mjs), built in this run. */
 async function bareBuild() {
-  const dir = await tempDir('fourfold-bench-bare-')
-  await symlink(join(root, 'node_modules'), join(dir, 'node_modules'), 'dir')
-  await writeFile(join(dir, 'package.json'), JSON.stringify({ name: 'bare', private: true, type: 'module' }))
-  // buildDir and the Vite cache stay in the temporary folder: the production default would be
-  // node_modules/.cache, which here is the project's own.
-  await writeFile(join(dir, 'nuxt.config.ts'), `export default defineNuxtConfig({
-  compatibilityDate: '2026-11-01',
-  devtools: { enabled: false },
-  buildDir: ${JSON.stringify(join(dir, '.nuxt'))},
-  vite: { cacheDir: ${JSON.stringify(join(dir, '.vite'))} },
-})
-`)
-  await mkdir(join(dir, 'app/pages'), { recursive: true })
-  await writeFile(join(dir, 'app/pages/index.vue'), '<template>\n  <h1>A bare page</h1>\n</template>\n')
-  const started = Date.now()
-  log('Building the bare Nuxt app under the lock …')
-  await run(...underLock('npx', ['nuxt', 'build']), { cwd: dir, env: { ...process.env, NODE_ENV: 'production' } })
-  const version = JSON.parse(readFileSync(join(root, 'node_modules/nuxt/package.json'), 'utf8')).version
-  return { output: join(dir, '.output'), how: `nuxt ${version}, ${Math.round((Date.now() - started) / 1000)} s` }
+  return buildBareNuxt({ lock: !lockHeld, log })
 }
 
 /** app/utils/localdb.ts bundled as it is (Dexie included) for the page, exposed as window.FourfoldLocalDb. */
@@ -255,44 +240,9 @@ async function seed(server) {
 
 // ---- browser ------------------------------------------------------------------------------
 
-function launch() {
-  return chromium.launch({
-    executablePath: process.env.CHROMIUM_PATH || '/usr/bin/chromium',
-    args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run', '--disable-quic'],
-  })
-}
-
 async function newContext(baseURL) {
   // Service workers off: every script the page asks for is then a visible request.
   return browser.newContext({ baseURL, viewport: { width: 1024, height: 768 }, serviceWorkers: 'block', locale: 'en-GB', extraHTTPHeaders: { 'x-forwarded-for': '198.18.0.2' } })
-}
-
-/** Every script a page load requests (modulepreloads and dynamic imports included; prefetch hints are not scripts). */
-async function scriptsLoadedBy(page, path, ready) {
-  const urls = new Set()
-  const onRequest = (request) => {
-    if (request.resourceType() === 'script') urls.add(new URL(request.url()).pathname)
-  }
-  page.on('request', onRequest)
-  await page.goto(path, { waitUntil: 'networkidle' })
-  await ready()
-  await page.waitForLoadState('networkidle')
-  await sleep(500)
-  page.off('request', onRequest)
-  return [...urls].sort()
-}
-
-function gzipKiB(output, paths) {
-  let bytes = 0
-  const files = []
-  for (const path of paths) {
-    const file = join(output, 'public', path)
-    if (!existsSync(file)) throw new Error(`${path} was requested but is not in ${join(output, 'public')}`)
-    const size = gzipSync(readFileSync(file), { level: 9 }).length
-    files.push({ path, size })
-    bytes += size
-  }
-  return { kib: bytes / 1024, files }
 }
 
 /** Nearest-rank percentile of a sorted list. */
@@ -381,7 +331,7 @@ async function main() {
   const appServer = await startServer('app', app.output)
   const bareServer = await startServer('bare', bare.output)
   const data = await seed(appServer)
-  browser = await launch()
+  browser = await launchChromium()
 
   // The coach's tablet: signed in, tablet data downloaded by the app itself.
   const context = await newContext(appServer.url)
@@ -415,7 +365,7 @@ async function main() {
   })
   const bareContext = await newContext(bareServer.url)
   const barePage = await bareContext.newPage()
-  const bareScripts = await scriptsLoadedBy(barePage, '/', () => barePage.getByRole('heading', { name: 'A bare page' }).waitFor())
+  const bareScripts = await scriptsLoadedBy(barePage, '/', () => barePage.getByRole('heading', { name: BARE_HEADING }).waitFor())
   const runnerJs = gzipKiB(app.output, runnerScripts)
   const bareJs = gzipKiB(bare.output, bareScripts)
 

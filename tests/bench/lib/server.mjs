@@ -24,9 +24,10 @@ export async function freePort() {
 
 /**
  * Starts `entry` with a fresh database. Hash settings come only from the build's default or from
- * extraEnv, never from the shell; `nodeArgs` go before the entry (e.g. --cpu-prof).
+ * extraEnv, never from the shell; `nodeArgs` go before the entry (e.g. --cpu-prof). `health` is the
+ * path that answers once the server is up (a bare Nuxt app has no /api/health: '/' there).
  */
-export async function startServer(entry, label, extraEnv = {}, { nodeArgs = [] } = {}) {
+export async function startServer(entry, label, extraEnv = {}, { nodeArgs = [], health = '/api/health' } = {}) {
   const dir = await makeTempDir('fourfold-bench-')
   const port = await freePort()
   const url = `http://127.0.0.1:${port}`
@@ -62,7 +63,7 @@ export async function startServer(entry, label, extraEnv = {}, { nodeArgs = [] }
   for (let attempt = 0; attempt < 1000; attempt++) {
     if (child.exitCode !== null) throw new Error(`${label} server exited early (${child.exitCode}):\n${output}`)
     try {
-      const res = await fetch(`${url}/api/health`, { signal: AbortSignal.timeout(2000) })
+      const res = await fetch(`${url}${health}`, { signal: AbortSignal.timeout(2000) })
       if (res.ok) {
         const server = { label, url, dir, databaseUrl, mailDir, child, output: () => output }
         servers.push(server)
@@ -73,7 +74,7 @@ export async function startServer(entry, label, extraEnv = {}, { nodeArgs = [] }
     if (Date.now() > deadline) break
     await sleep(150)
   }
-  throw new Error(`${label} server did not answer /api/health within ${HEALTH_TIMEOUT_MS / 1000} s:\n${output}`)
+  throw new Error(`${label} server did not answer ${health} within ${HEALTH_TIMEOUT_MS / 1000} s:\n${output}`)
 }
 
 /** The end of every server's output, for a failed run. */
