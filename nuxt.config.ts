@@ -4,6 +4,7 @@ import type { PluginOption } from 'vite'
 import { ensureDevSessionPassword } from './scripts/session-secret.mjs'
 import { PASSWORD_SCRYPT_SETTINGS } from './server/utils/password-settings'
 import { APP_SHELL_PATH, withAppShellEntry, type PrecacheEntry } from './app/utils/app-shell'
+import { SECURITY_MODULE_OPTIONS } from './server/utils/security-headers'
 
 // nuxt-auth-utils would otherwise write a generated secret into .env; we keep it in .data/.
 if (process.env.NODE_ENV !== 'production') ensureDevSessionPassword()
@@ -16,6 +17,7 @@ export default defineNuxtConfig({
     'nuxt-auth-utils',
     '@vite-pwa/nuxt',
     '@nuxt/eslint',
+    'nuxt-security',
   ],
   $development: {
     runtimeConfig: {
@@ -149,6 +151,8 @@ export default defineNuxtConfig({
     client: { installPrompt: true },
     devOptions: { enabled: false },
   },
+  // CSP with a per-response nonce, nosniff, Referrer-Policy, frame-ancestors; see the file.
+  security: SECURITY_MODULE_OPTIONS,
 })
 
 /**

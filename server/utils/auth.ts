@@ -1,9 +1,10 @@
 // Authorization in one place. Every route that touches organisation data calls
 // requireRole first; it re-reads the membership from the database on every
 // request, so a changed role or a removal takes effect at once.
+import { randomUUID } from 'node:crypto'
 import type { H3Event } from 'h3'
 import { and, eq } from 'drizzle-orm'
-import { memberships, organisations, users } from '../db/schema'
+import { endedSessions, memberships, organisations, users } from '../db/schema'
 import type { Role } from '../../shared/types/roles'
 
 export interface Caller {
@@ -20,19 +21,29 @@ export async function requireSignedIn(event: H3Event): Promise<Caller> {
   const session = await getUserSession(event)
   const userId = session.user?.id
   const organisationId = session.organisationId
+  const sessionId = session.sessionId
   if (!userId || !organisationId) throw unauthorised()
+  // A session from before sessions had ids cannot be ended at sign-out: sign in again (12 h at most).
+  if (!sessionId) {
+    await clearUserSession(event)
+    throw unauthorised('Your session has ended. Sign in again.')
+  }
   const db = await useDb()
   const [row] = await db.select({
     user: { id: users.id, name: users.name, email: users.email, passwordChangedAt: users.passwordChangedAt },
     membership: { id: memberships.id, role: memberships.role },
     organisation: { id: organisations.id, name: organisations.name, coachesMayPublish: organisations.coachesMayPublish },
+    endedSession: endedSessions.sessionId,
   }).from(memberships)
     .innerJoin(users, eq(users.id, memberships.userId))
     .innerJoin(organisations, eq(organisations.id, memberships.organisationId))
+    .leftJoin(endedSessions, eq(endedSessions.sessionId, sessionId))
     .where(and(eq(memberships.userId, userId), eq(memberships.organisationId, organisationId)))
     .limit(1)
-  // Removed from the organisation, or the password changed since this session began.
-  if (!row || (session.signedInAt ?? 0) < row.user.passwordChangedAt.getTime()) {
+  // Signed out (a copy of the cookie), removed from the organisation, or the password changed
+  // since this session began.
+  if (!row || row.endedSession !== null || (session.signedInAt ?? 0) < row.user.passwordChangedAt.getTime()) {
+    if (row?.endedSession) event.context.sessionAlreadyEnded = true
     await clearUserSession(event)
     throw unauthorised('Your session has ended. Sign in again.')
   }
@@ -53,7 +64,13 @@ export function assertMayReadLearner(caller: Caller, learnerUserId: string | nul
   if (caller.membership.role === 'learner' && learnerUserId !== caller.user.id) throw forbidden(`Learners can see only their own ${what}.`)
 }
 
-/** Starts a fresh sealed session (replace, never merge: no state carries over from before sign-in). */
+/**
+ * Starts a fresh sealed session (replace, never merge: no state carries over from before sign-in)
+ * with an id of its own, by which signing out ends it (server/utils/ended-sessions.ts).
+ */
 export async function startSession(event: H3Event, user: { id: string, name: string, email: string }, organisationId: string) {
-  await replaceUserSession(event, { user, organisationId, signedInAt: Date.now() })
+  // Signing in over another session (a shared tablet) ends that one too.
+  const previous = await getUserSession(event)
+  if (previous.sessionId) await endSession(previous.sessionId, previous.signedInAt)
+  await replaceUserSession(event, { user, organisationId, signedInAt: Date.now(), sessionId: randomUUID() })
 }

@@ -7,6 +7,8 @@ declare module '#auth-utils' {
   interface UserSession {
     organisationId?: string
     signedInAt?: number
+    /** Made at sign-in; signing out lists it in ended_sessions (server/utils/ended-sessions.ts). */
+    sessionId?: string
   }
 }
 
