@@ -29,7 +29,7 @@ import { ensureBuild, root, snapshotBuild } from './lib/build.mjs'
 import { LESSONS_PER_PUSH, CONTINUED_LESSONS, breakdownContent, makeTablet } from './lib/sync-records.mjs'
 import { cleanUp, makeTempDir, sleep } from './lib/cleanup.mjs'
 import { startGetLoops } from './lib/get-loop.mjs'
-import { addMember, expectJson, request, signIn, signUp } from './lib/http.mjs'
+import { addLearners, addMember, publishBreakdown, signIn, signUp } from './lib/http.mjs'
 import { loadAverage, percentile, processCpuSeconds, processMemoryMb, round, table } from './lib/report.mjs'
 import { reportServers, startServer } from './lib/server.mjs'
 
@@ -249,17 +249,11 @@ async function main() {
   const admin = await signUp(server, `admin-${stamp}@bench.example`, { organisation: 'Harbour Bakery (bench)' })
   const adminCookie = await signIn(server, `admin-${stamp}@bench.example`)
   const coach = await addMember(server, adminCookie, `coach-${stamp}@bench.example`, 'coach', 'Bench Coach')
-  const job = await expectJson(await request(server, 'POST', '/api/jobs', { title: 'Clean the dough divider', hazards: [{ category: 'sharp-edges', description: 'Divider knife' }] }, { cookie: coach.cookie }), 201, 'create job')
-  const draft = await expectJson(await request(server, 'POST', `/api/jobs/${job.id}/versions`, undefined, { cookie: coach.cookie }), 201, 'create draft')
   const content = breakdownContent()
-  await expectJson(await request(server, 'PATCH', `/api/versions/${draft.id}`, { revision: draft.revision, content }, { cookie: coach.cookie }), 200, 'save draft')
-  await expectJson(await request(server, 'POST', `/api/versions/${draft.id}/publish`, { changeNote: 'First version.' }, { cookie: adminCookie }), 200, 'publish')
-  const learnerIds = []
-  for (const name of ['Ilse Brannagh', 'Tomasz Weller', 'Ama Osei', 'Joris Vaak', 'Lena Stroud', 'Kofi Mensah']) {
-    learnerIds.push((await expectJson(await request(server, 'POST', '/api/learners', { name }, { cookie: coach.cookie }), 201, 'add learner')).id)
-  }
+  const { jobId, versionId } = await publishBreakdown(server, coach.cookie, adminCookie, content)
+  const learnerIds = await addLearners(server, coach.cookie, ['Ilse Brannagh', 'Tomasz Weller', 'Ama Osei', 'Joris Vaak', 'Lena Stroud', 'Kofi Mensah'])
   const organisationId = admin.organisation.id
-  const ids = { coachUserId: coach.userId, jobId: job.id, versionId: draft.id }
+  const ids = { coachUserId: coach.userId, jobId, versionId }
 
   const tablet = makeTablet(ids, content, 0x5eed1234)
   const [warmup, ...pushes] = tablet.pushes(1 + pushCount, eventsPerPush, learnerIds)

@@ -78,3 +78,19 @@ export async function addMember(server, adminCookie, email, role, name = `Bench 
   const body = await accepted.json()
   return { userId: body.user.id, cookie }
 }
+
+/** A job with `content` published as its first version (created by `cookie`, published by `adminCookie`); returns { jobId, versionId }. */
+export async function publishBreakdown(server, cookie, adminCookie, content, title = 'Clean the dough divider') {
+  const job = await expectJson(await request(server, 'POST', '/api/jobs', { title, hazards: [{ category: 'sharp-edges', description: 'Divider knife' }] }, { cookie }), 201, 'create job')
+  const draft = await expectJson(await request(server, 'POST', `/api/jobs/${job.id}/versions`, undefined, { cookie }), 201, 'create draft')
+  await expectJson(await request(server, 'PATCH', `/api/versions/${draft.id}`, { revision: draft.revision, content }, { cookie }), 200, 'save draft')
+  await expectJson(await request(server, 'POST', `/api/versions/${draft.id}/publish`, { changeNote: 'First version.' }, { cookie: adminCookie }), 200, 'publish')
+  return { jobId: job.id, versionId: draft.id }
+}
+
+/** Adds learners by name; returns their ids in the same order. */
+export async function addLearners(server, cookie, names) {
+  const ids = []
+  for (const name of names) ids.push((await expectJson(await request(server, 'POST', '/api/learners', { name }, { cookie }), 201, 'add learner')).id)
+  return ids
+}
