@@ -5,6 +5,7 @@ import type { PullAnswer } from '~/utils/sync-pull-types'
 import { localDb } from '~/utils/localdb'
 import { storePulledChecks, type SyncedCheck, type SyncedCheckEvent } from '~/utils/local-checks'
 import { applyPushAnswer, EVENTS_PER_PUSH, outbox, planPushes, type PushAnswer, type SyncedEvent, type SyncedLesson } from '~/utils/sync-client'
+import { retryWords, syncRetryDelay } from '~/utils/sync-retry'
 
 export interface SyncState {
   running: boolean
@@ -20,15 +21,20 @@ export interface SyncState {
   rejectedChecks: SyncedCheck[]
   rejectedCheckEvents: SyncedCheckEvent[]
   lastSyncedAt: number | null
+  /** When the next automatic try is due after a push that did not get through (utils/sync-retry.ts), or null. */
+  retryAt: number | null
 }
 
 let inFlight: Promise<void> | null = null
+/** The automatic try after a failed run, and how many runs in a row have failed. */
+let retryTimer: ReturnType<typeof setTimeout> | undefined
+let failuresInRow = 0
 /** How long after a change to the outbox the waiting counts are read again. */
 const OUTBOX_RECOUNT_MS = 300
 let watching: { organisationId: string, subscription: { unsubscribe: () => void } } | null = null
 
 export function useSync() {
-  const state = useState<SyncState>('sync', () => ({ running: false, sent: 0, planned: 0, progress: '', problem: null, waiting: { lessons: 0, events: 0, checks: 0 }, rejectedLessons: [], rejectedEvents: [], rejectedChecks: [], rejectedCheckEvents: [], lastSyncedAt: null }))
+  const state = useState<SyncState>('sync', () => ({ running: false, sent: 0, planned: 0, progress: '', problem: null, waiting: { lessons: 0, events: 0, checks: 0 }, rejectedLessons: [], rejectedEvents: [], rejectedChecks: [], rejectedCheckEvents: [], lastSyncedAt: null, retryAt: null }))
   const member = useMemberStore()
 
   /** The full outbox: what is waiting and what was refused (read after each run, not on every tap). */
@@ -134,12 +140,26 @@ export function useSync() {
       await db.meta.put({ key: `lastSyncedAt:${organisationId}`, value: now })
       state.value.lastSyncedAt = now
       state.value.progress = ''
+      failuresInRow = 0
     }
     catch (error) {
       const status = (error as { statusCode?: number })?.statusCode
+      const retryAfter = (error as { response?: { headers?: Headers } })?.response?.headers?.get('retry-after') ?? null
+      failuresInRow += 1
+      // What did not get an answer is still in the outbox; sending it again is safe (same ids).
+      const delay = navigator.onLine ? syncRetryDelay({ status, retryAfter }, failuresInRow) : null
+      const again = delay === null ? '' : ` It is sent again by itself ${retryWords(delay)}.`
       state.value.problem = status === 401
         ? 'Sign in again to send what is waiting; it stays on this tablet meanwhile.'
-        : status ? `The server refused the push (${status}). Everything stays on this tablet; try again.` : 'The connection dropped. Everything stays on this tablet; it is sent when the connection returns.'
+        : status && delay !== null
+          ? `The server is busy just now. Everything stays on this tablet.${again}`
+          : status
+            ? `The server refused the push (${status}). Everything stays on this tablet; try again.`
+            : `The connection dropped. Everything stays on this tablet; it is sent when the connection returns.${again}`
+      if (delay !== null) {
+        state.value.retryAt = Date.now() + delay
+        retryTimer = setTimeout(() => void syncNow(), delay)
+      }
     }
     finally {
       state.value.running = false
@@ -149,6 +169,10 @@ export function useSync() {
 
   function syncNow(): Promise<void> {
     if (import.meta.server) return Promise.resolve()
+    // A run now replaces the automatic try that was waiting.
+    clearTimeout(retryTimer)
+    retryTimer = undefined
+    state.value.retryAt = null
     inFlight ??= run().finally(() => {
       inFlight = null
     })

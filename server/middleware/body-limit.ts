@@ -26,7 +26,9 @@ export default defineEventHandler(async (event) => {
       chunks.push(chunk)
     })
     req.on('end', () => resolve())
-    req.on('error', reject)
+    // The connection dropped before the body was whole (a tablet losing its network mid-push):
+    // nothing was read into anything, and the client sends it again.
+    req.on('error', () => reject(badRequest('The request body could not be read to the end; send it again.')))
   })
   // h3's readRawBody takes this instead of reading the (now consumed) stream again.
   ;(req as typeof req & { rawBody?: Buffer }).rawBody = Buffer.concat(chunks)
