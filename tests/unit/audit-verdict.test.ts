@@ -1,7 +1,7 @@
 // The npm audit step (scripts/audit.mjs) judged on reports of the shape npm 7+ prints for
 // `npm audit --json` (auditReportVersion 2: `vulnerabilities` by package, `metadata.vulnerabilities`
 // counts; shape from memory of npm's output, the packages and advisories below are invented), and
-// on the error npm prints when the audit service answers 405 (as captured on this machine).
+// on the error npm prints when the audit service answers 405 (as captured on this machine, host left out).
 import { describe, expect, it } from 'vitest'
 import { auditVerdict } from '../../scripts/audit.mjs'
 
@@ -35,7 +35,7 @@ describe('the npm audit step', () => {
   })
 
   it('says it could not check when npm printed an error instead of a report', () => {
-    const refused = { message: '405 Method Not Allowed - POST https://registry.npmjs.org/-/npm/v1/security/advisories/bulk', statusCode: 405, error: { summary: '', detail: '' } }
+    const refused = { message: '405 Method Not Allowed - POST https://registry.example/-/npm/v1/security/advisories/bulk', statusCode: 405, error: { summary: '', detail: '' } }
     expect(auditVerdict(refused)).toEqual({ status: 'unreachable', counts: {}, lines: [refused.message] })
     expect(auditVerdict(null).status).toBe('unreachable')
   })
