@@ -344,6 +344,30 @@ export const endedSessions = sqliteTable('ended_sessions', {
   expiresAt: integer('expires_at').notNull(),
 }, t => [index('ended_sessions_expires_idx').on(t.expiresAt)])
 
+// Mail waiting to go out (server/utils/mail-outbox.ts): written in the same transaction as the
+// invite, reset or digest it belongs to, deleted once the mail server has taken it, so an SMTP
+// server that is down loses nothing. A row holds the mail itself (a one-time link included) only
+// until it is sent or expires_at passes (the link's own lifetime; a digest's day). The claim
+// (claimed_by, claimed_until) decides which app instance sends it; digest_send_id is the
+// digest_sends claim that becomes "sent" with it.
+export const mailOutbox = sqliteTable('mail_outbox', {
+  id: id(),
+  organisationId: text('organisation_id').references(() => organisations.id, { onDelete: 'cascade' }),
+  kind: text('kind', { enum: ['invite', 'reset', 'digest'] }).notNull(),
+  recipient: text('recipient').notNull(),
+  subject: text('subject').notNull(),
+  text: text('text').notNull(),
+  html: text('html').notNull(),
+  digestSendId: text('digest_send_id').references(() => digestSends.id, { onDelete: 'cascade' }),
+  createdAt: integer('created_at').notNull(),
+  expiresAt: integer('expires_at').notNull(),
+  attempts: integer('attempts').notNull().default(0),
+  nextAttemptAt: integer('next_attempt_at').notNull(),
+  claimedBy: text('claimed_by'),
+  claimedUntil: integer('claimed_until'),
+  lastError: text('last_error'),
+}, t => [index('mail_outbox_next_idx').on(t.nextAttemptAt)])
+
 export type PlanItem = typeof planItems.$inferSelect
 export type SpotCheck = typeof spotChecks.$inferSelect
 export type CheckEventRow = typeof checkEvents.$inferSelect
