@@ -10,7 +10,7 @@ import { join } from 'node:path'
 import { promisify } from 'node:util'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
-import { TABLET_LANDSCAPE, TABLET_PORTRAIT, launchBrowser, openContext, overflowsSideways, routerPush, smallTargets, visit, type Viewport } from '../support/browser'
+import { addToolScript, TABLET_LANDSCAPE, TABLET_PORTRAIT, launchBrowser, openContext, overflowsSideways, routerPush, smallTargets, visit, type Viewport } from '../support/browser'
 import { startServer, type TestServer } from '../support/server'
 import type { PlanMatrix } from '../../shared/types/plan-matrix'
 import { dayStart, localDay, shortDate } from '../../shared/utils/training-status'
@@ -38,7 +38,7 @@ afterAll(async () => {
 async function axeViolations(page: Page) {
   // Colours are judged once every transition has finished, not halfway through one.
   await page.evaluate(() => Promise.all(document.getAnimations().map(a => a.finished.catch(() => undefined))))
-  if (!(await page.evaluate(() => 'axe' in window))) await page.addScriptTag({ path: 'node_modules/axe-core/axe.min.js' })
+  if (!(await page.evaluate(() => 'axe' in window))) await addToolScript(page, 'node_modules/axe-core/axe.min.js')
   return page.evaluate(async () => {
     const axe = (window as unknown as { axe: { run: (ctx: Document, o: object) => Promise<{ violations: Array<{ id: string, impact: string, help: string, nodes: Array<{ target: string[] }> }> }> } }).axe
     const result = await axe.run(document, { runOnly: { type: 'tag', values: ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa', 'wcag22aa'] } })

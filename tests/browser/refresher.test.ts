@@ -8,7 +8,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
 import { PASSWORD, addMember, signUp } from '../support/accounts'
 import { cleanTryout, publishedJob, rosterLearner, slicerContent } from '../support/breakdowns'
-import { TABLET_VIEWPORTS, launchBrowser, openContext, overflowsSideways, smallTargets, visit, waitForHydration, type Viewport } from '../support/browser'
+import { addToolScript, TABLET_VIEWPORTS, launchBrowser, openContext, overflowsSideways, smallTargets, visit, waitForHydration, type Viewport } from '../support/browser'
 import { startServer, type TestServer } from '../support/server'
 import type { BreakdownContent } from '../../shared/schemas/breakdown'
 
@@ -81,7 +81,7 @@ async function idbRows<T>(page: Page, store: string): Promise<T[]> {
 
 async function axeViolations(page: Page, include?: string) {
   await page.evaluate(() => Promise.all(document.getAnimations().map(a => a.finished.catch(() => undefined))))
-  if (!(await page.evaluate(() => 'axe' in window))) await page.addScriptTag({ path: 'node_modules/axe-core/axe.min.js' })
+  if (!(await page.evaluate(() => 'axe' in window))) await addToolScript(page, 'node_modules/axe-core/axe.min.js')
   return page.evaluate(async (selector) => {
     const axe = (window as unknown as { axe: { run: (ctx: unknown, o: object) => Promise<{ violations: Array<{ id: string, impact: string, help: string, nodes: Array<{ target: string[] }> }> }> } }).axe
     const result = await axe.run(selector ? { include: [selector] } : document, { runOnly: { type: 'tag', values: ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa', 'wcag22aa'] } })

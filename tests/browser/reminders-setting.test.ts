@@ -4,7 +4,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
 import { PASSWORD, addMember, signUp } from '../support/accounts'
-import { TABLET_VIEWPORTS, launchBrowser, openContext, overflowsSideways, smallTargets, visit } from '../support/browser'
+import { addToolScript, TABLET_VIEWPORTS, launchBrowser, openContext, overflowsSideways, smallTargets, visit } from '../support/browser'
 import { startServer, type TestServer } from '../support/server'
 
 let server: TestServer
@@ -27,7 +27,7 @@ afterAll(async () => {
 
 async function axeViolations(page: Page) {
   await page.evaluate(() => Promise.all(document.getAnimations().map(a => a.finished.catch(() => undefined))))
-  if (!(await page.evaluate(() => 'axe' in window))) await page.addScriptTag({ path: 'node_modules/axe-core/axe.min.js' })
+  if (!(await page.evaluate(() => 'axe' in window))) await addToolScript(page, 'node_modules/axe-core/axe.min.js')
   return page.evaluate(async () => {
     const axe = (window as unknown as { axe: { run: (ctx: Document, o: object) => Promise<{ violations: Array<{ id: string, impact: string, help: string, nodes: Array<{ target: string[] }> }> }> } }).axe
     const result = await axe.run(document, { runOnly: { type: 'tag', values: ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa', 'wcag22aa'] } })

@@ -9,7 +9,7 @@ import { randomUUID } from 'node:crypto'
 import { mkdir, writeFile } from 'node:fs/promises'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, BrowserContext, Page } from 'playwright-core'
-import { TABLET_VIEWPORTS, launchBrowser, openContext, overflowsSideways, smallTargets, visit, type Viewport } from '../support/browser'
+import { addToolScript, TABLET_VIEWPORTS, launchBrowser, openContext, overflowsSideways, smallTargets, visit, type Viewport } from '../support/browser'
 import { startServer, type TestServer } from '../support/server'
 import { addMember, PASSWORD, signUp } from '../support/accounts'
 import { publishedJob, rosterLearner, slicerContent } from '../support/breakdowns'
@@ -106,7 +106,7 @@ async function signIn(context: BrowserContext, email: string) {
 
 async function axeViolations(page: Page) {
   await page.evaluate(() => Promise.all(document.getAnimations().map(a => a.finished.catch(() => undefined))))
-  if (!(await page.evaluate(() => 'axe' in window))) await page.addScriptTag({ path: 'node_modules/axe-core/axe.min.js' })
+  if (!(await page.evaluate(() => 'axe' in window))) await addToolScript(page, 'node_modules/axe-core/axe.min.js')
   return page.evaluate(async () => {
     const axe = (window as unknown as { axe: { run: (ctx: Document, o: object) => Promise<{ violations: Array<{ id: string, impact: string, help: string, nodes: Array<{ target: string[] }> }> }> } }).axe
     const result = await axe.run(document, { runOnly: { type: 'tag', values: ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa', 'wcag22aa'] } })

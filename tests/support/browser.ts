@@ -1,5 +1,6 @@
 // Real Chromium for the browser project: Debian's package driven by playwright-core.
 // A browser download does not work here, so the executable is always the system one.
+import { readFileSync } from 'node:fs'
 import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core'
 import { uniqueAddress } from './http'
 
@@ -101,4 +102,13 @@ export async function smallTargets(page: Page, min = 44): Promise<{ checked: num
 /** Whether the page is wider than its viewport (something forces a sideways scroll). */
 export async function overflowsSideways(page: Page): Promise<boolean> {
   return page.evaluate(() => document.documentElement.scrollWidth > document.documentElement.clientWidth)
+}
+
+/**
+ * Runs a test tool's script file (axe-core) in the page. Not page.addScriptTag: that inserts an
+ * inline <script>, which the app's Content-Security-Policy refuses (it has no nonce). Evaluated over
+ * the DevTools protocol instead, as a person's console would, so the page's policy stays as it is.
+ */
+export async function addToolScript(page: Page, path: string): Promise<void> {
+  await page.evaluate(readFileSync(path, 'utf8'))
 }
