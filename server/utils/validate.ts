@@ -3,6 +3,7 @@
 // `data.fieldErrors` the forms show beside each field.
 import type { H3Event } from 'h3'
 import type { z } from 'zod'
+import { personMessage } from '../../shared/utils/zod-messages'
 
 export function fieldErrorsOf(error: z.ZodError): Record<string, string[]> {
   const fieldErrors: Record<string, string[]> = {}
@@ -29,7 +30,7 @@ export async function readValid<S extends z.ZodType>(event: H3Event, schema: S):
   if (body === undefined || body === null || typeof body !== 'object') {
     throw createError({ statusCode: 400, statusMessage: 'Bad Request', message: 'Send a JSON object in the request body.', data: { message: 'Send a JSON object in the request body.' } })
   }
-  const result = schema.safeParse(body)
+  const result = schema.safeParse(body, { error: personMessage })
   if (!result.success) throw invalidInput(result.error)
   return result.data
 }
@@ -42,7 +43,7 @@ export async function paramsValid<S extends z.ZodType>(event: H3Event, schema: S
 }
 
 export function queryValid<S extends z.ZodType>(event: H3Event, schema: S): z.output<S> {
-  const result = schema.safeParse(getQuery(event))
+  const result = schema.safeParse(getQuery(event), { error: personMessage })
   if (!result.success) throw invalidInput(result.error, 'Some query parameters are not valid.')
   return result.data
 }

@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { isSingleLine } from './common'
 
 // OWASP ASVS 5.0 V6.2: at least 8 characters (we ask 10), long passphrases allowed, no composition rules.
 export const passwordSchema = z.string({ error: 'Enter a password.' })
@@ -15,9 +16,17 @@ export const personNameSchema = z.string({ error: 'Enter a name.' })
   .trim()
   .min(1, 'Enter a name.')
   .max(120, 'Keep the name under 120 characters.')
+  .refine(isSingleLine, 'Write the name on one line, without line breaks, tabs or other control characters.')
+
+/** An organisation's name: it stands in mail subjects (invitations, the digest), so one line only. */
+export const organisationNameSchema = z.string({ error: 'Enter the organisation\'s name.' })
+  .trim()
+  .min(2, 'Enter the organisation\'s name.')
+  .max(120, 'Keep the name under 120 characters.')
+  .refine(isSingleLine, 'Write the organisation\'s name on one line, without line breaks, tabs or other control characters.')
 
 export const signupSchema = z.object({
-  organisation: z.string({ error: 'Enter the organisation\'s name.' }).trim().min(2, 'Enter the organisation\'s name.').max(120, 'Keep the name under 120 characters.'),
+  organisation: organisationNameSchema,
   name: personNameSchema,
   email: emailSchema,
   password: passwordSchema,

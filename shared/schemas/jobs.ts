@@ -1,5 +1,6 @@
 import { z } from 'zod'
 import { HAZARD_CATEGORIES } from '../types/breakdown'
+import { isSingleLine } from './common'
 
 const shortList = (what: string, max: number, length = 120) =>
   z.array(z.string().trim().min(1, `Remove the empty ${what} line or fill it in.`).max(length, `Keep each ${what} under ${length} characters.`))
@@ -11,7 +12,9 @@ export const hazardSchema = z.object({
 })
 
 export const jobFieldsSchema = z.object({
-  title: z.string({ error: 'Give the job a title.' }).trim().min(2, 'Give the job a title.').max(120, 'Keep the title under 120 characters.'),
+  // Shown in the digest mail's lines, so one line only.
+  title: z.string({ error: 'Give the job a title.' }).trim().min(2, 'Give the job a title.').max(120, 'Keep the title under 120 characters.')
+    .refine(isSingleLine, 'Write the title on one line, without line breaks, tabs or other control characters.'),
   workAreaId: z.uuid('Choose a work area from the list.').nullable().default(null),
   purpose: z.string().trim().max(1000, 'Keep the purpose under 1000 characters.').default(''),
   hazards: z.array(hazardSchema).max(20, 'At most 20 hazards.').default([]),

@@ -2,8 +2,6 @@
 // The role × route matrix. Every file under server/api/ must have an entry here, so no
 // route can skip the authorization check: a new route fails this test until it is listed.
 // Areas keep their entries in tests/e2e/route-matrix/<area>.ts (export const entries), merged below.
-import { readdirSync, statSync } from 'node:fs'
-import { join, relative } from 'node:path'
 import { randomUUID } from 'node:crypto'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { startServer, type TestServer } from '../support/server'
@@ -12,7 +10,7 @@ import { addMember, signUp, uniqueEmail } from '../support/accounts'
 import { photoForm } from '../support/photos'
 import { ROLES, type Role } from '../../shared/types/roles'
 
-import { missingId, type Entry } from '../support/route-matrix'
+import { missingId, routeFiles, routeKey, type Entry } from '../support/route-matrix'
 
 // Bodies are valid so that the answer speaks of the role, not of the input.
 const CORE: Record<string, Entry> = {
@@ -69,22 +67,6 @@ const CORE: Record<string, Entry> = {
 
 const areaFiles = import.meta.glob<{ entries: Record<string, Entry> }>('./route-matrix/*.ts', { eager: true })
 export const MATRIX: Record<string, Entry> = Object.assign({}, CORE, ...Object.values(areaFiles).map(f => f.entries))
-
-function routeFiles(dir: string): string[] {
-  return readdirSync(dir).flatMap((name) => {
-    const full = join(dir, name)
-    return statSync(full).isDirectory() ? routeFiles(full) : [full]
-  })
-}
-
-export function routeKey(file: string): string {
-  const rel = relative('server/api', file).replace(/\\/g, '/').replace(/\.ts$/, '')
-  const match = /^(.*?)(?:\.(get|post|put|patch|delete))$/.exec(rel)
-  const path = match ? match[1]! : rel
-  const method = (match?.[2] ?? 'get').toUpperCase()
-  const clean = path.replace(/(^|\/)index$/, '')
-  return `${method} /api${clean ? `/${clean}` : ''}`
-}
 
 describe('every route is in the matrix', () => {
   it('lists each file under server/api/ exactly once', () => {
