@@ -65,6 +65,19 @@ export function assertMayReadLearner(caller: Caller, learnerUserId: string | nul
 }
 
 /**
+ * h3 reads the request's cookie again after clearing a session, so the old session's id and start
+ * time (from which the 12 hours count) would carry over into the one replacing it: a coach signing
+ * in over a colleague's eleven-hour-old session would be signed out an hour later. Taking the old
+ * cookie out of this request first makes the replacement a new session.
+ */
+function forgetRequestSession(event: H3Event) {
+  const name = useRuntimeConfig(event).session?.name || 'nuxt-session'
+  const header = event.node.req.headers.cookie
+  if (header) event.node.req.headers.cookie = header.split(';').filter(part => part.split('=')[0]!.trim() !== name).join(';')
+  if (event.context.sessions) Reflect.deleteProperty(event.context.sessions, name)
+}
+
+/**
  * Starts a fresh sealed session (replace, never merge: no state carries over from before sign-in)
  * with an id of its own, by which signing out ends it (server/utils/ended-sessions.ts).
  */
@@ -72,5 +85,6 @@ export async function startSession(event: H3Event, user: { id: string, name: str
   // Signing in over another session (a shared tablet) ends that one too.
   const previous = await getUserSession(event)
   if (previous.sessionId) await endSession(previous.sessionId, previous.signedInAt)
+  forgetRequestSession(event)
   await replaceUserSession(event, { user, organisationId, signedInAt: Date.now(), sessionId: randomUUID() })
 }

@@ -282,6 +282,25 @@ describe('signing out', () => {
     expect((await copy.get('/api/me')).status).toBe(401)
   })
 
+  it('signing in over another session starts a new one: nothing, not even its start time, carries over', async () => {
+    const first = await signUp(server)
+    const second = await signUp(server)
+    const before = (await first.client.get('/api/_auth/session')).body
+    expect(before.sessionId).toBeTruthy()
+    await new Promise(r => setTimeout(r, 2100))
+    const signedIn = await first.client.post('/api/auth/login', { email: second.email, password: PASSWORD })
+    expect(signedIn.status).toBe(200)
+    const after = (await first.client.get('/api/_auth/session')).body
+    expect(after.user.email).toBe(second.email)
+    // h3's own session id and creation time (from which the 12 hours count) are new as well.
+    expect(after.id).not.toBe(before.id)
+    expect(after.sessionId).not.toBe(before.sessionId)
+    const cookie = signedIn.headers.getSetCookie().filter(c => /^fourfold-session=[^;]+/.test(c)).pop()!
+    // Expires is written in whole seconds; a carried-over start would be 2.1 s or more earlier.
+    const expires = Date.parse(/;\s*Expires=([^;]+)/i.exec(cookie)![1]!)
+    expect(Math.abs(expires - (Date.now() + 12 * 3600_000))).toBeLessThan(1500)
+  })
+
   it('signing in over another session (a shared tablet) ends the earlier one', async () => {
     const first = await signUp(server)
     const second = await signUp(server)
