@@ -91,7 +91,8 @@ export default defineNuxtConfig({
     compressPublicAssets: true,
     // A tick, not the send time: the digest task sends from DIGEST_TIME (run-time setting, 06:00 by
     // default) and later ticks retry failed sends; see server/tasks/reminders/digest.ts.
-    scheduledTasks: { '*/15 * * * *': ['reminders:digest'] },
+    // mail:outbox: a safety net for queued mail (each instance retries its own on a timer).
+    scheduledTasks: { '*/15 * * * *': ['reminders:digest'], '*/5 * * * *': ['mail:outbox'] },
     hooks: {
       // Ship the committed migrations beside the built server so it can migrate itself.
       compiled(nitro) {

@@ -5,25 +5,29 @@
 // Once a day, even with several app instances: before a mail goes out, its digest_sends row
 // (unique on user + day) is inserted. That insert is the decision: the instance whose insert
 // goes in sends; any other finds the row and skips. The row is written first and confirmed after:
-//   1. claim   insert (user, day, sent_at = 0) — on conflict nothing, so only one claim wins
-//   2. send    through SMTP
-//   3. confirm sent_at = now;   or, when the send fails with an error: delete the claim,
-//              so the next run (every 15 minutes) tries again — a failed send is retried, not lost.
+//   1. claim   insert (user, day, sent_at = 0) — on conflict nothing, so only one claim wins —
+//              and, in the same transaction, the composed mail into the mail outbox
+//   2. send    through SMTP (mail-outbox.ts deliverQueuedMail)
+//   3. confirm sent_at = now, in the transaction that takes the mail out of the outbox. When the
+//              mail server does not take it, the mail waits in the outbox and is sent when the
+//              server answers again (that day at the latest: it expires at the end of the day);
+//              the claim stays, so no later run composes a second digest meanwhile.
 // Recording before sending means a crash between 1 and 3 leaves a claim with sent_at = 0 and that
-// person gets no digest that day rather than two (what it said is still due tomorrow). Sending
-// first would turn the same crash into a second mail from the next run, which is worse.
+// person gets no digest that day rather than two (what it said is still due tomorrow); the outbox
+// drops a digest whose sender died mid-send for the same reason. Sending first would turn the same
+// crash into a second mail from the next run, which is worse.
 import { randomUUID } from 'node:crypto'
 import { and, eq, inArray } from 'drizzle-orm'
 import { digestSends, jobs, learners, lessons, memberships, organisations, spotChecks, users } from '../db/schema'
-import { localDay } from '../../shared/utils/training-status'
+import { endOfDay, localDay } from '../../shared/utils/training-status'
 import { DEFAULT_DIGEST_TIME, DIGEST_ROLES, composeDigests, digestSwitchedOn, parseDigestTime, type CoachedAt, type Digest, type DigestMember, type DueCheckFact, type LatePlanFact } from './digest-compose'
 
 export interface DigestRunSummary {
   organisations: number
   /** mails handed to the mail server */
   sent: number
-  /** mails the mail server refused or could not take; their claims were removed for a retry */
-  failed: number
+  /** mails the mail server did not take now; they wait in the mail outbox and go when it answers */
+  queued: number
   /** people whose digest for today had already gone (or was being sent by another instance) */
   alreadySent: number
   /** people with the digest on and nothing to be told today */
@@ -116,36 +120,31 @@ async function digestFacts(db: Db, organisationId: string, now: number): Promise
   return { checks, late }
 }
 
-/** Claims today's row for one person: its id when this call won it and must send, else null. */
-async function claimDigest(db: Db, organisationId: string, userId: string, day: string): Promise<string | null> {
-  const id = randomUUID()
-  const inserted = await serialiseWrite(() => db.insert(digestSends)
-    .values({ id, organisationId, userId, day, sentAt: 0 })
-    .onConflictDoNothing()
-    .returning({ id: digestSends.id }))
-  return inserted.length ? id : null
-}
-
-async function sendClaimed(db: Db, claimId: string, digest: Digest, organisation: string, now: number): Promise<boolean> {
-  try {
-    await sendMail(digestMail({
-      to: digest.member.email,
-      name: digest.member.name,
-      organisation,
-      now,
-      checks: digest.checks,
-      unassignedChecks: digest.unassignedChecks,
-      late: digest.late,
-      links: { today: appLink('/'), plan: appLink('/plan'), account: appLink('/account') },
-    }))
-  }
-  catch (error) {
-    console.error(`[fourfold] digest to ${digest.member.email} was not sent; it is tried again on the next run:`, error)
-    await serialiseWrite(() => db.delete(digestSends).where(and(eq(digestSends.id, claimId), eq(digestSends.sentAt, 0))))
-    return false
-  }
-  await serialiseWrite(() => db.update(digestSends).set({ sentAt: Date.now() }).where(eq(digestSends.id, claimId)))
-  return true
+/**
+ * Claims today's row for one person and queues their composed digest with it, in one transaction.
+ * The queued mail's id when this call won the claim and must send, else null.
+ */
+async function claimDigest(db: Db, organisationId: string, digest: Digest, organisation: string, day: string, now: number): Promise<string | null> {
+  const mail = digestMail({
+    to: digest.member.email,
+    name: digest.member.name,
+    organisation,
+    now,
+    checks: digest.checks,
+    unassignedChecks: digest.unassignedChecks,
+    late: digest.late,
+    links: { today: appLink('/'), plan: appLink('/plan'), account: appLink('/account') },
+  })
+  return serialiseWrite(() => db.transaction(async (tx) => {
+    const id = randomUUID()
+    const inserted = await tx.insert(digestSends)
+      .values({ id, organisationId, userId: digest.member.userId, day, sentAt: 0 })
+      .onConflictDoNothing()
+      .returning({ id: digestSends.id })
+    if (!inserted.length) return null
+    // A digest is about its day: not sent by the end of it, it is dropped (tomorrow's says what is still due).
+    return queueMail(tx, { ...mail, kind: 'digest', organisationId, digestSendId: id, expiresAt: endOfDay(now) })
+  }, { behavior: 'immediate' }))
 }
 
 /**
@@ -159,7 +158,7 @@ export async function runDigests(options: { organisationIds?: string[], now?: nu
   const orgs = options.organisationIds
     ? await db.select({ id: organisations.id, name: organisations.name }).from(organisations).where(inArray(organisations.id, options.organisationIds))
     : await db.select({ id: organisations.id, name: organisations.name }).from(organisations)
-  const summary: DigestRunSummary = { organisations: orgs.length, sent: 0, failed: 0, alreadySent: 0, nothingToSay: 0, turnedOff: 0, organisationErrors: 0 }
+  const summary: DigestRunSummary = { organisations: orgs.length, sent: 0, queued: 0, alreadySent: 0, nothingToSay: 0, turnedOff: 0, organisationErrors: 0 }
 
   // One organisation's trouble (a failed read) must not keep the others' digests back.
   for (const org of orgs) {
@@ -189,12 +188,16 @@ async function runOrganisationDigests(db: Db, org: { id: string, name: string },
   const digests = composeDigests(members, facts.checks, facts.late).filter(d => pending.has(d.member.userId))
   summary.nothingToSay += pending.size - digests.length
   for (const digest of digests) {
-    const claimId = await claimDigest(db, org.id, digest.member.userId, day)
-    if (!claimId) {
+    const mailId = await claimDigest(db, org.id, digest, org.name, day, now)
+    if (!mailId) {
       summary.alreadySent += 1
       continue
     }
-    if (await sendClaimed(db, claimId, digest, org.name, now)) summary.sent += 1
-    else summary.failed += 1
+    const delivered = await deliverQueuedMail({ ids: [mailId] }).catch((error) => {
+      console.error(`[fourfold] digest to ${digest.member.email} not sent yet; it stays queued:`, error)
+      return { sent: 0 }
+    })
+    if (delivered.sent) summary.sent += 1
+    else summary.queued += 1
   }
 }

@@ -1,5 +1,6 @@
 // Outgoing mail through nodemailer. With SMTP_URL set it goes to that server;
 // without it, to the local capture server (mail-capture.ts), started on first use.
+// Routes do not call sendMail themselves: they queue the mail (mail-outbox.ts), which sends it.
 import nodemailer from 'nodemailer'
 import type { Transporter } from 'nodemailer'
 
@@ -16,7 +17,9 @@ export function mailIsCaptured(): boolean {
 export function mailTransport(): Promise<Transporter> {
   transport ??= (async () => {
     const url = smtpUrl()
-    if (url) return nodemailer.createTransport(url)
+    // Bounded waits, so a mail server that accepts connections but never answers cannot hold a
+    // request (or a run of the outbox, mail-outbox.ts) for nodemailer's default two minutes.
+    if (url) return nodemailer.createTransport({ url, connectionTimeout: 10_000, greetingTimeout: 10_000, socketTimeout: 30_000 })
     const port = await startMailCapture(mailDirectory())
     return nodemailer.createTransport({ host: '127.0.0.1', port, secure: false, ignoreTLS: true })
   })().catch((error) => {

@@ -79,6 +79,39 @@ export async function photoStorageOrFail(): Promise<Storage> {
   }
 }
 
+/**
+ * Why a write to photo storage failed, as the uploader should hear it: 507 when the store is full
+ * (ENOSPC / EDQUOT on disk, 507 from an S3-compatible server), otherwise 503 (unwritable folder,
+ * S3 down or answering 5xx) with a Retry-After, since the same photo may well go in later.
+ */
+export function photoStorageFailure(error: unknown) {
+  const code = (error as { code?: unknown })?.code
+  const full = code === 'ENOSPC' || code === 'EDQUOT' || /: 507 /.test(String((error as Error)?.message ?? ''))
+  const message = full
+    ? 'The photo store is full, so this photo was not saved. Ask your administrator to free space in photo storage, then upload it again.'
+    : 'Photo storage could not save this photo just now, so nothing was saved. Try the upload again in a minute; if it keeps failing, ask your administrator to check photo storage.'
+  return createError({ statusCode: full ? 507 : 503, statusMessage: full ? 'Insufficient Storage' : 'Service Unavailable', message, data: { message, ...(full ? {} : { retryAfterSeconds: 30 }) } })
+}
+
+/**
+ * Writes an upload's objects (the photo and its thumbnail) in order. If one fails, every object of
+ * the upload is removed again, the failed one too (a filesystem write can leave part of a file),
+ * and the failure is answered in words (photoStorageFailure): nothing half-written is kept, and
+ * no uploads row is written for it.
+ */
+export async function storePhotoObjects(storage: Storage, objects: Array<{ key: string, bytes: Buffer }>): Promise<void> {
+  for (const [i, { key, bytes }] of objects.entries()) {
+    try {
+      await storage.setItemRaw(key, bytes)
+    }
+    catch (error) {
+      console.error(`[fourfold] photo storage refused ${key}:`, error)
+      await Promise.allSettled(objects.slice(0, i + 1).map(o => storage.removeItem(o.key)))
+      throw photoStorageFailure(error)
+    }
+  }
+}
+
 /** Stored bytes as a Buffer, whichever driver returned them (fs: Buffer, s3: ArrayBuffer). */
 export async function readPhotoBytes(key: string): Promise<Buffer | null> {
   const storage = await photoStorageOrFail()

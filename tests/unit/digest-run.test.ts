@@ -1,7 +1,7 @@
 // The once-a-day rule of the digest run (server/utils/digest.ts runDigests) against a real SQLite
 // file with the committed migrations: two runs at once with no lease between them (as when a lease
-// has expired under a slow run) still send one mail per person; a refused send is retried on the
-// next run; a claim left by a crash is not sent again. The mail transport is a collector here
+// has expired under a slow run) still send one mail per person; a refused send waits in the mail
+// outbox and goes once the mail server takes it, still once; a claim left by a crash is not sent again. The mail transport is a collector here
 // (the e2e test tests/e2e/reminders.test.ts sends real SMTP to the capture server); Nitro's
 // auto-imported helpers are supplied as the globals the build would import.
 import { randomUUID } from 'node:crypto'
@@ -19,6 +19,7 @@ import { trainingRows } from '../../server/utils/training-state'
 import { digestMail } from '../../server/utils/mail-templates'
 import type { OutgoingMail } from '../../server/utils/mail'
 import { runDigests } from '../../server/utils/digest'
+import { deliverQueuedMail, queueMail } from '../../server/utils/mail-outbox'
 
 const DAY = 86_400_000
 let dir: string
@@ -34,7 +35,10 @@ const now = new Date(2026, 11, 2, 6, 0).getTime()
 
 beforeAll(async () => {
   dir = await mkdtemp(join(tmpdir(), 'fourfold-digest-'))
-  client = createClient({ url: `file:${join(dir, 'digest.db')}`, timeout: 5000 })
+  const url = `file:${join(dir, 'digest.db')}`
+  // The write queue's lock probe opens the configured database (server/utils/database-busy.ts).
+  process.env.DATABASE_URL = url
+  client = createClient({ url, timeout: 5000 })
   db = drizzle(client, { schema })
   await migrate(db, { migrationsFolder: resolve('drizzle') })
   Object.assign(globalThis, {
@@ -42,6 +46,8 @@ beforeAll(async () => {
     serialiseWrite,
     trainingRows,
     digestMail,
+    queueMail,
+    deliverQueuedMail,
     appLink: (path: string) => `http://fourfold.example${path}`,
     useRuntimeConfig: () => ({}),
     // A mail server that takes its time (so two runs interleave) and refuses some addresses.
@@ -88,6 +94,7 @@ afterAll(async () => {
 beforeEach(async () => {
   sent = []
   refuse = new Set()
+  await db.delete(schema.mailOutbox)
   await db.delete(schema.digestSends)
 })
 
@@ -113,20 +120,32 @@ describe('the digest run', () => {
     expect((await runDigests({ now: now + DAY })).sent).toBe(3)
   })
 
-  it('retries a send the mail server refused on the next run, and only that one', async () => {
+  it('keeps a digest the mail server refused in the outbox, sends it once the server takes it, and composes no second one', async () => {
     refuse.add('ben@bakery.example')
-    expect(await runDigests({ now, organisationIds: [orgId] })).toMatchObject({ sent: 1, failed: 1 })
+    expect(await runDigests({ now, organisationIds: [orgId] })).toMatchObject({ sent: 1, queued: 1 })
     expect(to()).toEqual(['anna@bakery.example'])
+    const waiting = await db.select().from(schema.mailOutbox)
+    expect(waiting.map(m => [m.kind, m.recipient, m.attempts])).toEqual([['digest', 'ben@bakery.example', 1]])
+    // Ben's claim stays (sent_at 0): a later run composes nothing more for him.
+    expect(await runDigests({ now, organisationIds: [orgId] })).toMatchObject({ sent: 0, queued: 0, alreadySent: 2 })
     refuse.clear()
-    expect(await runDigests({ now, organisationIds: [orgId] })).toMatchObject({ sent: 1, failed: 0, alreadySent: 1 })
+    expect(await deliverQueuedMail({ ignoreBackoff: true })).toEqual({ sent: 1, notSent: 0 })
     expect(to()).toEqual(['anna@bakery.example', 'ben@bakery.example'])
+    expect(await db.select().from(schema.mailOutbox)).toEqual([])
+    const rows = await db.select().from(schema.digestSends)
+    expect(rows.every(r => r.sentAt > 0)).toBe(true)
   })
 
   it('does not send again after a crash between the claim and the confirmation', async () => {
-    // What a process that died mid-send leaves: a claim with sent_at 0.
-    await db.insert(schema.digestSends).values({ id: randomUUID(), organisationId: orgId, userId: people.anna, day: '2026-12-02', sentAt: 0 })
+    // What a process that died mid-send leaves: a claim with sent_at 0, and its queued mail
+    // claimed by the run that died (the claim has expired since).
+    const claimId = randomUUID()
+    await db.insert(schema.digestSends).values({ id: claimId, organisationId: orgId, userId: people.anna, day: '2026-12-02', sentAt: 0 })
+    await db.insert(schema.mailOutbox).values({ id: randomUUID(), organisationId: orgId, kind: 'digest', recipient: 'anna@bakery.example', subject: 'Crumbs & Co', text: 'x', html: 'x', digestSendId: claimId, createdAt: now, expiresAt: Date.now() + DAY, nextAttemptAt: now, claimedBy: 'gone:1:x', claimedUntil: Date.now() - 1 })
     expect(await runDigests({ now, organisationIds: [orgId] })).toMatchObject({ sent: 1, alreadySent: 1 })
+    expect(await deliverQueuedMail({ ignoreBackoff: true })).toEqual({ sent: 0, notSent: 0 })
     expect(to()).toEqual(['ben@bakery.example'])
+    expect(await db.select().from(schema.mailOutbox)).toEqual([])
   })
 
   it('leaves out whoever turned the digest off', async () => {

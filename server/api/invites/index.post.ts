@@ -29,7 +29,15 @@ export default defineEventHandler(async (event) => {
     invitedBy: caller.user.id,
     expiresAt: new Date(now + INVITE_TOKEN_LIFETIME_MS),
   }
-  await writeTransaction(async (tx) => {
+  const mail = inviteMail({
+    to: input.email,
+    organisation: caller.organisation.name,
+    inviter: caller.user.name,
+    role: ROLE_LABELS[input.role].toLowerCase(),
+    link: appLink(`/accept-invite?token=${encodeURIComponent(token)}`),
+    days: INVITE_TOKEN_LIFETIME_MS / 86_400_000,
+  })
+  const mailId = await writeTransaction(async (tx) => {
     // A new invitation to the same address replaces any still open.
     await tx.update(invites).set({ revokedAt: new Date(now) }).where(and(
       eq(invites.organisationId, caller.organisation.id),
@@ -39,22 +47,11 @@ export default defineEventHandler(async (event) => {
     ))
     await tx.insert(invites).values(invite)
     await recordAudit(tx, { organisationId: caller.organisation.id, actorUserId: caller.user.id, action: 'invite.created', targetType: 'invite', targetId: invite.id, detail: { email: input.email, role: input.role } })
+    // The mail is kept with the invitation: a mail server that is down delays it, never loses it.
+    return queueMail(tx, { ...mail, kind: 'invite', organisationId: caller.organisation.id, expiresAt: invite.expiresAt.getTime() }, now)
   })
-  let mailed = true
-  try {
-    await sendMail(inviteMail({
-      to: input.email,
-      organisation: caller.organisation.name,
-      inviter: caller.user.name,
-      role: ROLE_LABELS[input.role].toLowerCase(),
-      link: appLink(`/accept-invite?token=${encodeURIComponent(token)}`),
-      days: INVITE_TOKEN_LIFETIME_MS / 86_400_000,
-    }))
-  }
-  catch (error) {
-    mailed = false
-    console.error('[fourfold] invite mail not sent:', error)
-  }
+  // false: the mail server did not take it now; it stays queued and goes out when it answers.
+  const mailed = (await deliverQueuedMail({ ids: [mailId] }).catch(() => ({ sent: 0 }))).sent === 1
   setResponseStatus(event, 201)
   return { id: invite.id, email: invite.email, role: invite.role, expiresAt: invite.expiresAt, mailed }
 })

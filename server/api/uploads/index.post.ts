@@ -14,8 +14,8 @@ export default defineEventHandler(async (event): Promise<UploadedPhoto> => {
   const organisationId = caller.organisation.id
   const { storageKey, thumbKey } = photoKeys(organisationId, id, photo.ext)
   const storage = await photoStorageOrFail()
-  await storage.setItemRaw(storageKey, photo.full)
-  await storage.setItemRaw(thumbKey, photo.thumb)
+  // Objects first, then the row that refers to them: a failed write leaves neither (503 / 507).
+  await storePhotoObjects(storage, [{ key: storageKey, bytes: photo.full }, { key: thumbKey, bytes: photo.thumb }])
   try {
     await writeTransaction(async (tx) => {
       await tx.insert(uploads).values({ id, organisationId, storageKey, thumbKey, mime: photo.mime, width: photo.width, height: photo.height, bytes: photo.full.byteLength, createdBy: caller.user.id })

@@ -1,6 +1,7 @@
 // The scheduled reminder digest (nuxt.config.ts scheduledTasks: every 15 minutes). From DIGEST_TIME
 // on, each run mails everyone whose digest for today has not gone yet, so the first run of the day
-// sends and the later ones only retry failed sends. The lease makes one instance do the work while
+// sends and the later ones only pick up people and organisations missed (a mail the mail server did
+// not take waits in the mail outbox instead, server/utils/mail-outbox.ts). The lease makes one instance do the work while
 // the others skip; the once-a-day rule itself rests on digest_sends (server/utils/digest.ts).
 export default defineTask<string | DigestRunSummary>({
   meta: {
@@ -14,7 +15,7 @@ export default defineTask<string | DigestRunSummary>({
     const outcome = await withLease('reminders:digest', DIGEST_LEASE_MS, () => runDigests())
     if (!outcome.ran) return { result: 'Another instance is sending the digests.' }
     const s = outcome.result
-    if (s.sent || s.failed || s.organisationErrors) console.info(`[fourfold] digests: ${s.sent} sent, ${s.failed} to retry, ${s.alreadySent} already sent, ${s.nothingToSay} with nothing to say, ${s.organisationErrors} organisations to retry`)
+    if (s.sent || s.queued || s.organisationErrors) console.info(`[fourfold] digests: ${s.sent} sent, ${s.queued} queued for the mail server, ${s.alreadySent} already sent, ${s.nothingToSay} with nothing to say, ${s.organisationErrors} organisations to retry`)
     return { result: s }
   },
 })
