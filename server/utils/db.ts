@@ -8,6 +8,10 @@ import { drizzle } from 'drizzle-orm/libsql'
 import { migrate } from 'drizzle-orm/libsql/migrator'
 import * as schema from '../db/schema'
 import { checkpointInBackground, WAL_AUTOCHECKPOINT_PAGES } from './wal-checkpoint'
+import { beginWritesWithoutStuckStatements } from './write-begin'
+
+/** How long a write waits for another process's hold on the write lock. */
+const BUSY_TIMEOUT_MS = 5000
 
 export type Db = ReturnType<typeof drizzle<typeof schema>>
 
@@ -41,7 +45,7 @@ async function open(): Promise<Db> {
     url,
     authToken: process.env.DATABASE_AUTH_TOKEN || useRuntimeConfig().databaseAuthToken || undefined,
     // Busy timeout (ms) for every pooled connection: waits for another process's write.
-    timeout: 5000,
+    timeout: BUSY_TIMEOUT_MS,
   })
   if (url.startsWith('file:')) {
     // WAL is a property of the database file, so one connection setting it is enough.
@@ -52,6 +56,9 @@ async function open(): Promise<Db> {
       // statements reuse most (the pool hands back the last one returned).
       await client.execute(`PRAGMA wal_autocheckpoint = ${WAL_AUTOCHECKPOINT_PAGES}`)
       checkpointInBackground(client, path)
+      // Another process's hold on the write lock is waited for off the event loop, and a write
+      // that gives up leaves no statement stuck on a pooled connection (write-begin.ts).
+      beginWritesWithoutStuckStatements(client, BUSY_TIMEOUT_MS)
     }
   }
   const db = drizzle(client, { schema })

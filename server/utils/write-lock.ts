@@ -21,9 +21,13 @@ let lockHeldElsewhere = false
 
 const sleep = (ms: number) => new Promise(resolve => setTimeout(resolve, ms))
 
-/** Waits until the write lock is free or `deadline` passes; true when free. Sleeps 1, 2, 4 … 50 ms between asks. */
+/**
+ * Waits until the write lock is free or `deadline` passes; true when free. Sleeps 1, 2, then 4 ms
+ * between asks: another app process that lets this one in (write-turns.ts) leaves the lock unused
+ * until the next ask, and one ask costs about 30 µs.
+ */
 async function lockFreeBy(deadline: number): Promise<boolean> {
-  for (let pause = 1, waited = false; ; pause = Math.min(50, pause * 2), waited = true) {
+  for (let pause = 1, waited = false; ; pause = Math.min(4, pause * 2), waited = true) {
     if (await lockIsFree()) {
       if (waited) sayTakingWriteLock()
       return true

@@ -14,10 +14,10 @@ import { databaseUrl } from './db'
 
 /** This process's name in the file. */
 const SELF = `${process.pid}.${randomUUID().slice(0, 8)}`
-/** A waiter says so again at least every 50 ms (write-lock.ts); an older "waiting" is from one that stopped. */
+/** A waiter says so again every few ms (write-lock.ts, write-begin.ts); an older "waiting" is from one that stopped (or whose event loop is held up). */
 const WAITING_FRESH_MS = 250
-/** The longest a process leaves the lock free for a waiter: more than a waiter's longest pause between asks. */
-const HOLD_BACK_MS = 120
+/** The longest a process leaves the lock free for a waiter: far more than a waiter's pause between asks (4–8 ms). */
+const HOLD_BACK_MS = 100
 /** After "writing", the waiter's BEGIN follows within microseconds; this much margin before asking ourselves. */
 const SETTLE_MS = 2
 
