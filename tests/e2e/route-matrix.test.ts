@@ -6,7 +6,7 @@ import { randomUUID } from 'node:crypto'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { startServer, type TestServer } from '../support/server'
 import { Client, uniqueAddress } from '../support/http'
-import { addMember, signUp, uniqueEmail } from '../support/accounts'
+import { PASSWORD, addMember, signUp, uniqueEmail } from '../support/accounts'
 import { photoForm } from '../support/photos'
 import { ROLES, type Role } from '../../shared/types/roles'
 
@@ -78,13 +78,31 @@ describe('every route is in the matrix', () => {
 
 let server: TestServer
 const clients: Partial<Record<Role | 'anonymous', Client>> = {}
+const emails: Partial<Record<Role, string>> = {}
 beforeAll(async () => {
   server = await startServer()
   const admin = await signUp(server)
   clients.admin = admin.client
-  for (const role of ROLES.filter(r => r !== 'admin')) clients[role] = (await addMember(server, admin.client, role)).client
+  emails.admin = admin.email
+  for (const role of ROLES.filter(r => r !== 'admin')) {
+    const member = await addMember(server, admin.client, role)
+    clients[role] = member.client
+    emails[role] = member.email
+  }
   clients.anonymous = new Client(server.url, uniqueAddress())
 }, 120_000)
+
+/**
+ * A second session of the same person, for a request that replaces or ends its session. Not a copy
+ * of the cookie: signing out ends the session for every copy of it (tests/e2e/web-security.test.ts).
+ */
+async function ownSession(who: Role | 'anonymous'): Promise<Client> {
+  const client = new Client(server.url, uniqueAddress())
+  if (who === 'anonymous') return client
+  const res = await client.post('/api/auth/login', { email: emails[who], password: PASSWORD })
+  if (res.status !== 200) throw new Error(`second session for ${who}: ${res.status} ${res.text}`)
+  return client
+}
 afterAll(() => server?.stop())
 
 describe('role × route', () => {
@@ -94,7 +112,7 @@ describe('role × route', () => {
     const [method, template] = key.split(' ') as [string, string]
     const path = entry.path?.() ?? template
     const body = entry.body?.() ?? (method === 'GET' ? undefined : {})
-    const client = entry.ownSession ? clients[who]!.clone() : clients[who]!
+    const client = entry.ownSession ? await ownSession(who) : clients[who]!
     const res = await client.request(method, path, body)
     expect(res.status, res.text).toBeLessThan(500)
     const allowed = entry.access === 'public' || (who !== 'anonymous' && (entry.access === 'signed-in' || entry.access.includes(who)))

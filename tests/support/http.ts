@@ -5,7 +5,7 @@ export class Client {
   private cookies = new Map<string, string>()
   constructor(readonly base: string, readonly address = '127.0.0.1') {}
 
-  /** Another client with the same cookies: for requests that would change this one's session. */
+  /** Another client with the same cookies, so the same session: signing out in either ends it for both. */
   clone(): Client {
     const copy = new Client(this.base, this.address)
     for (const [k, v] of this.cookies) copy.cookies.set(k, v)

@@ -6,7 +6,8 @@ import { join, relative } from 'node:path'
 import type { Role } from '../../shared/types/roles'
 
 export type Access = 'public' | 'signed-in' | Role[]
-// `ownSession`: the request replaces or ends the caller's session, so it runs on a copy.
+// `ownSession`: the request replaces or ends the caller's session, so it runs in a second session
+// of the same person (signing out ends every copy of a session's cookie).
 // Bodies should be valid so that the answer speaks of the role, not of the input.
 export interface Entry { access: Access, path?: () => string, body?: () => unknown, ownSession?: boolean }
 
