@@ -6,6 +6,8 @@
 //   ... -- --tablets 50 --readers 20      simulated tablets (2–200) and reading connections (0–100)
 //   ... -- --duration 60 --events 300     measured seconds per run (5–600) and events per push (10–5000)
 //   ... -- --only two                     one of the runs (one | two), to look into it; the other's keys are null
+//   ... -- --output DIR                   runs another build's output folder instead (to compare two builds)
+//   ... -- --server-logs DIR              writes the end of each server's output (20 kB) to DIR, kept after the run
 //
 // Each tablet is its own coach, signed in through an invitation read from the captured mail. It
 // builds a push of a few lessons' events (lib/sync-records.mjs: presentations, try-outs T1–T4,
@@ -22,10 +24,10 @@
 // Traffic goes to 127.0.0.1 only. A table is printed for people; the very last line is one JSON
 // object (DESIGN §6).
 import { randomBytes } from 'node:crypto'
-import { writeFileSync } from 'node:fs'
+import { existsSync, mkdirSync, writeFileSync } from 'node:fs'
 import { copyFile } from 'node:fs/promises'
 import { cpus } from 'node:os'
-import { join } from 'node:path'
+import { join, resolve } from 'node:path'
 import autocannon from 'autocannon'
 import { createClient } from '@libsql/client'
 import { buildLockHeld, ensureBuild, snapshotBuild } from './lib/build.mjs'
@@ -52,6 +54,17 @@ const durationS = intOption('--duration', 60, 5, 600)
 const eventsPerPush = intOption('--events', 300, 10, 5000)
 const only = args.includes('--only') ? args[args.indexOf('--only') + 1] : null
 if (only !== null && only !== 'one' && only !== 'two') throw new Error('--only takes one or two')
+const otherOutput = stringOption('--output')
+const serverLogs = args.includes('--server-logs') ? resolve(args[args.indexOf('--server-logs') + 1] ?? '.') : null
+if (serverLogs) mkdirSync(serverLogs, { recursive: true })
+
+function stringOption(name) {
+  const i = args.indexOf(name)
+  if (i === -1) return undefined
+  const value = args[i + 1]
+  if (!value || !existsSync(join(value, 'server/index.mjs'))) throw new Error(`${name} takes a build's output folder (with server/index.mjs)`)
+  return resolve(value)
+}
 
 function intOption(name, fallback, min, max) {
   const i = args.indexOf(name)
@@ -166,8 +179,8 @@ function figuresOf(run) {
 
 async function main() {
   const lockHeld = buildLockHeld()
-  const build = await ensureBuild({ forceBuild, lock: true, log })
-  const entry = await snapshotBuild({ lock: true })
+  const build = otherOutput ? `${otherOutput} (--output)` : await ensureBuild({ forceBuild, lock: true, log })
+  const entry = otherOutput ? await snapshotBuild({ from: otherOutput }) : await snapshotBuild({ lock: true })
   log(`Build: ${build}; the servers run from a private copy`)
   guard = setTimeout(() => {
     console.error(`\nload benchmark: still running after ${RUN_TIMEOUT_MS / 60_000} minutes; stopping`)
@@ -247,7 +260,7 @@ function report(one, two, loadBefore, loadAfter) {
     if (failures.length) log(`Failures (first 5 of ${failures.length}):\n  ${failures.slice(0, 5).map(x => JSON.stringify(x)).join('\n  ')}`)
     if (t.rejected.length) log(`Rejected (first 5):\n  ${t.rejected.slice(0, 5).map(x => JSON.stringify(x)).join('\n  ')}`)
     for (const server of run.servers) {
-      if (process.env.LOAD_DEBUG_LOG) writeFileSync(`${process.env.LOAD_DEBUG_LOG}-${server.label}.txt`, server.output())
+      if (serverLogs) writeFileSync(join(serverLogs, `${run.name.startsWith('One') ? 'one' : 'two'}-${server.label}.log`), server.output())
       const lines = server.output().split('\n').filter(line => /busy|locked|SQLITE_|error/i.test(line))
       if (lines.length) log(`Server ${server.label}'s output about errors (last 5 of ${lines.length} kept):\n  ${lines.slice(-5).map(line => line.slice(0, 300)).join('\n  ')}`)
     }
