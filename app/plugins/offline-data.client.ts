@@ -4,13 +4,16 @@
 import { runsLessons } from '~/composables/useOfflineData'
 import { tabletDataStale } from '~/utils/offline'
 
-export default defineNuxtPlugin((nuxtApp) => {
+export default defineNuxtPlugin(() => {
   const member = useMemberStore()
   const online = useOnline()
   const offlineData = useOfflineData()
   const { fetch: fetchSession } = useUserSession()
 
-  nuxtApp.hook('app:mounted', () => {
+  // Only once the server-rendered page has hydrated (and the browser is idle): state changed before
+  // would differ from the server's HTML under Vue's comparison (a hydration mismatch), and the
+  // download would compete with the page's own start.
+  onNuxtReady(() => {
     // A server-rendered first page brings `me` in the payload: keep it on the tablet too.
     watch(() => member.me, async (me) => {
       if (!me || member.fromDevice) return

@@ -1,7 +1,7 @@
 // Asks the browser to keep this site's storage (navigator.storage.persist) once someone is signed
 // in, so lessons not yet sent to the server are not cleared when the tablet runs short of space.
 // The answer is shown on Today ("Storage kept: yes/no").
-export default defineNuxtPlugin((nuxtApp) => {
+export default defineNuxtPlugin(() => {
   const member = useMemberStore()
   const state = useStorageKept()
   let asked = false
@@ -21,7 +21,8 @@ export default defineNuxtPlugin((nuxtApp) => {
     }
   }
 
-  nuxtApp.hook('app:mounted', () => {
+  // After hydration: the answer changes Today's words, which must first match the server's HTML.
+  onNuxtReady(() => {
     watch(() => member.me?.user.id, (userId) => {
       if (userId && !asked) void ask()
     }, { immediate: true })
