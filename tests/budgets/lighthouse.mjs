@@ -4,6 +4,7 @@
 //
 //   npm run budget:lighthouse         the existing .output (FOURFOLD_OUTPUT=DIR: another build's copy)
 //   ... -- --runs 1                   audits per page (1–5, default 3)
+//   ... -- --save DIR                 also writes every Lighthouse report (JSON) into DIR
 //
 // Required of each page: performance ≥ 90, accessibility 100, best practices ≥ 95.
 // Each page is audited three times, each time in a fresh Chromium profile, and the median score of
@@ -17,17 +18,18 @@
 //   the app downloads the organisation's breakdowns, photos and roster to the tablet during the load;
 // - the lesson runner (/lessons/<id>, rendered in the browser, reads IndexedDB): the coach's tablet
 //   has downloaded its data and started a lesson (Playwright over the same Chromium's DevTools port),
-//   and the lesson stands at the try-out stage. Lighthouse's own reset then clears the service worker,
+//   the lesson stands at the try-out stage and everything on the tablet has been sent to the server. Lighthouse's own reset then clears the service worker,
 //   Cache Storage and the HTTP cache before the load (IndexedDB and the cookie stay: that is the
 //   tablet), so the scripts come over the network as on a first visit.
 // A table for people; the last line is one JSON object of the median scores.
 import * as chromeLauncher from 'chrome-launcher'
 import lighthouse from 'lighthouse'
 import { chromium } from 'playwright-core'
+import { mkdir, writeFile } from 'node:fs/promises'
 import { join, resolve } from 'node:path'
 import { root, snapshotBuild } from '../bench/lib/build.mjs'
 import { cleanUp } from '../bench/lib/cleanup.mjs'
-import { DEMO, demoSession, downloadTabletData, moveLessonTo, seedDemo, signInContext, startLesson } from '../bench/lib/demo-tablet.mjs'
+import { DEMO, demoSession, downloadTabletData, moveLessonTo, seedDemo, settleTablet, signInContext, startLesson } from '../bench/lib/demo-tablet.mjs'
 import { reportServers, startServer } from '../bench/lib/server.mjs'
 
 const REQUIRED = { 'performance': 0.9, 'accessibility': 1, 'best-practices': 0.95 }
@@ -37,6 +39,7 @@ const CHROME_FLAGS = ['--headless', '--no-sandbox', '--disable-gpu', '--disable-
 const args = process.argv.slice(2)
 const runs = args.includes('--runs') ? Number(args[args.indexOf('--runs') + 1]) : 3
 if (!Number.isInteger(runs) || runs < 1 || runs > 5) throw new Error('--runs takes a whole number from 1 to 5')
+const saveDir = args.includes('--save') ? resolve(args[args.indexOf('--save') + 1] ?? '') : null
 const log = (...parts) => console.log(...parts)
 const chromes = new Set()
 
@@ -101,6 +104,8 @@ async function main() {
         const lessonId = await startLesson(page, base)
         await page.goto(`${base}/fourfold.svg`)
         await moveLessonTo(page, lessonId, 'tryout')
+        // Between two sittings of the lesson: it and everything else has reached the server.
+        await settleTablet(page, base)
         return `${base}/lessons/${lessonId}`
       },
     },
@@ -109,7 +114,14 @@ async function main() {
   const results = []
   for (const target of pages) {
     const reports = []
-    for (let i = 0; i < runs; i++) reports.push(await audit(target.prepare))
+    for (let i = 0; i < runs; i++) {
+      const lhr = await audit(target.prepare)
+      reports.push(lhr)
+      if (saveDir) {
+        await mkdir(saveDir, { recursive: true })
+        await writeFile(join(saveDir, `${target.key}-${i + 1}.json`), JSON.stringify(lhr))
+      }
+    }
     const scores = Object.fromEntries(CATEGORIES.map(c => [c, reports.map(r => r.categories[c].score)]))
     const medians = Object.fromEntries(CATEGORIES.map(c => [c, median(scores[c])]))
     // The report whose performance is the median one explains the figures.

@@ -57,6 +57,17 @@ export async function downloadTabletData(page, base = '') {
   await page.getByText(/Breakdowns on this tablet: [1-9]/).waitFor({ timeout: 60_000 })
 }
 
+/**
+ * Opens Today and waits until everything on the tablet is on the server and the tablet has pulled
+ * what changed: the state a coach's tablet is in between lessons.
+ */
+export async function settleTablet(page, base = '') {
+  await downloadTabletData(page, base)
+  await page.getByText('Nothing waiting: everything on this tablet is on the server.').waitFor({ timeout: 60_000 })
+  await page.getByText(/^Last sent /).waitFor({ timeout: 60_000 })
+  await page.waitForLoadState('networkidle')
+}
+
 /** Starts a lesson from /lessons/new with the first learner and job on the tablet; returns its id. */
 export async function startLesson(page, base = '') {
   await page.goto(`${base}/lessons/new`)
