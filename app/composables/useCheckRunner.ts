@@ -7,6 +7,7 @@ import { elementsById, type CheckElement } from '#shared/utils/check-elements'
 import { checkResult, replayCheck } from '#shared/utils/check-state'
 import { MARK_LABELS, type MarkValue } from '#shared/utils/scoring'
 import { localDb, type LocalCheckEvent, type OfflineVersion } from '~/utils/localdb'
+import { saveFailureWords } from '~/utils/storage-full'
 import { appendCheckEvent, asCheckEvent, eventsOfCheck, getCheck, updateCheck, type SyncedCheck } from '~/utils/local-checks'
 
 type LoadStatus = 'loading' | 'ready' | 'missing' | 'no-version'
@@ -49,7 +50,7 @@ export function useCheckRunner() {
       return value
     }
     catch (error) {
-      saveError.value = `Not saved: ${what.charAt(0).toLowerCase()}${what.slice(1)}. The tablet's storage refused it (${error instanceof Error ? error.message : 'unknown error'}); try again.`
+      saveError.value = saveFailureWords(what, error)
       return undefined
     }
     finally {

@@ -6,6 +6,7 @@ import { localDb } from '~/utils/localdb'
 import { storePulledChecks, type SyncedCheck, type SyncedCheckEvent } from '~/utils/local-checks'
 import { applyPushAnswer, EVENTS_PER_PUSH, outbox, planPushes, type PushAnswer, type SyncedEvent, type SyncedLesson } from '~/utils/sync-client'
 import { retryWords, syncRetryDelay } from '~/utils/sync-retry'
+import { isStorageFull } from '~/utils/storage-full'
 
 export interface SyncState {
   running: boolean
@@ -146,16 +147,20 @@ export function useSync() {
       const status = (error as { statusCode?: number })?.statusCode
       const retryAfter = (error as { response?: { headers?: Headers } })?.response?.headers?.get('retry-after') ?? null
       failuresInRow += 1
+      // The tablet could not note the answer (its storage is full): sending again would not help.
+      const full = isStorageFull(error)
       // What did not get an answer is still in the outbox; sending it again is safe (same ids).
-      const delay = navigator.onLine ? syncRetryDelay({ status, retryAfter }, failuresInRow) : null
+      const delay = navigator.onLine && !full ? syncRetryDelay({ status, retryAfter }, failuresInRow) : null
       const again = delay === null ? '' : ` It is sent again by itself ${retryWords(delay)}.`
-      state.value.problem = status === 401
-        ? 'Sign in again to send what is waiting; it stays on this tablet meanwhile.'
-        : status && delay !== null
-          ? `The server is busy just now. Everything stays on this tablet.${again}`
-          : status
-            ? `The server refused the push (${status}). Everything stays on this tablet; try again.`
-            : `The connection dropped. Everything stays on this tablet; it is sent when the connection returns.${again}`
+      state.value.problem = full
+        ? 'This tablet\'s storage is full, so it could not note what the server took. Nothing is lost: free space on the tablet (remove photos, videos or apps it does not need), then send again.'
+        : status === 401
+          ? 'Sign in again to send what is waiting; it stays on this tablet meanwhile.'
+          : status && delay !== null
+            ? `The server is busy just now. Everything stays on this tablet.${again}`
+            : status
+              ? `The server refused the push (${status}). Everything stays on this tablet; try again.`
+              : `The connection dropped. Everything stays on this tablet; it is sent when the connection returns.${again}`
       if (delay !== null) {
         state.value.retryAt = Date.now() + delay
         retryTimer = setTimeout(() => void syncNow(), delay)

@@ -9,6 +9,7 @@ import { withBreakdownNumbers } from '#shared/utils/refresher-cards'
 import { parsePassKey, type PassType } from '#shared/utils/lesson-events'
 import { MARK_LABELS, type MarkValue } from '#shared/utils/scoring'
 import type { VersionDetail } from '~/types/jobs'
+import { saveFailureWords } from '~/utils/storage-full'
 import { appendEvent, getLesson, lessonEvents, localDb, updateLesson, type LocalEvent, type LocalLesson, type NewEvent, type OfflineVersion } from '~/utils/localdb'
 import { firstOpenIndex, indexAfterMark, lastUndoable, nextPassKey, nextStandardPass, normaliseCursor, openPassOf, passCards, stageOfPass, type RunnerCursor, type RunnerStage } from '#shared/utils/lesson-flow'
 
@@ -68,7 +69,7 @@ export const useLessonStore = defineStore('lesson', () => {
       return result
     }
     catch (error) {
-      saveError.value = `Not saved: ${what.charAt(0).toLowerCase()}${what.slice(1)}. The tablet's storage refused it (${error instanceof Error ? error.message : 'unknown error'}); try again.`
+      saveError.value = saveFailureWords(what, error)
       return undefined
     }
     finally {

@@ -7,6 +7,7 @@ import type { BreakdownContent } from '#shared/schemas/breakdown'
 import type { LessonEvent } from '#shared/utils/lesson-events'
 // crypto.randomUUID exists only in secure contexts; a tablet on a plain-http site address still needs ids.
 import { newElementId as newId } from './breakdown-words'
+import { StorageFullError, isStorageFull } from './storage-full'
 
 export interface OfflineVersion {
   id: string
@@ -195,7 +196,9 @@ let nextSeq: number | undefined
 /**
  * Appends one event with this device's next sequence number, in one strict transaction; resolves
  * only once IndexedDB has committed it. The lesson's updatedAt follows a moment later
- * (touchLesson), outside the tap's transaction.
+ * (touchLesson), outside the tap's transaction. When the browser's storage quota is reached it
+ * rejects with StorageFullError (utils/storage-full.ts) and keeps nothing of this event; the
+ * events committed before are untouched.
  */
 export async function appendEvent(input: NewEvent, now = Date.now()): Promise<LocalEvent> {
   const store = localDb()
@@ -207,9 +210,15 @@ export async function appendEvent(input: NewEvent, now = Date.now()): Promise<Lo
   }
   catch (error) {
     nextSeq = undefined
+    if (isStorageFull(error)) throw new StorageFullError(error)
     if (!(error instanceof SequenceMoved)) throw error
     // Another tab (or a spot check's mark) took the number meanwhile: read the stored one this time.
-    event = await writeEvent(store, input, device, now, undefined)
+    try {
+      event = await writeEvent(store, input, device, now, undefined)
+    }
+    catch (again) {
+      throw isStorageFull(again) ? new StorageFullError(again) : again
+    }
   }
   nextSeq = Math.max(nextSeq ?? 0, event.seq + 1)
   // Observers hear of it just after the tap resolves: the screen does not wait for them.
@@ -235,10 +244,18 @@ function writeEvent(store: FourfoldDb, input: NewEvent, device: string, now: num
     const metaStore = tx.objectStore('meta')
     let event: LocalEvent | undefined
     let moved = false
+    let thrown: unknown
     const write = (seq: number) => {
       event = { ...input, id: newId(), clientTime: now, deviceId: device, seq, synced: 0 }
-      metaStore.put({ key: 'seq', value: seq } satisfies MetaRow)
-      tx.objectStore('events').add(event)
+      try {
+        metaStore.put({ key: 'seq', value: seq } satisfies MetaRow)
+        tx.objectStore('events').add(event)
+      }
+      catch (error) {
+        // A write refused on the spot: the seq must not commit without its event.
+        thrown = error
+        tx.abort()
+      }
     }
     const stored = metaStore.get('seq')
     const storedSeq = () => ((stored.result as MetaRow | undefined)?.value as number | undefined) ?? 0
@@ -254,7 +271,7 @@ function writeEvent(store: FourfoldDb, input: NewEvent, device: string, now: num
       write(reserved)
     }
     tx.oncomplete = () => resolve(event!)
-    tx.onabort = () => reject(moved ? new SequenceMoved() : (tx.error ?? new DOMException('The tablet\'s storage gave up on the write.', 'AbortError')))
+    tx.onabort = () => reject(moved ? new SequenceMoved() : (thrown ?? tx.error ?? new DOMException('The tablet\'s storage gave up on the write.', 'AbortError')))
   })
 }
 
