@@ -1,6 +1,7 @@
 // The local stand-in for a mail server: when SMTP_URL is unset, an SMTP server on
 // 127.0.0.1 accepts every message and keeps it under the mail directory as the raw
-// .eml plus a .json summary (recipients, subject, text, links) for people and tests.
+// .eml plus a .json summary (recipients, subject, text, links) for people and tests. The envelope
+// (MAIL FROM / RCPT TO) is kept too: it is who the mail really went to, whatever the headers say.
 import { mkdir, readdir, readFile, writeFile } from 'node:fs/promises'
 import { resolve } from 'node:path'
 import { randomUUID } from 'node:crypto'
@@ -17,6 +18,7 @@ export interface CapturedMail {
   text: string
   html: string
   links: string[]
+  envelope: { from: string, to: string[] }
 }
 
 export function mailDirectory(): string {
@@ -30,7 +32,7 @@ export async function startMailCapture(dir: string): Promise<number> {
     disabledCommands: ['STARTTLS', 'AUTH'],
     logger: false,
     size: 5 * 1024 * 1024,
-    onData(stream, _session, callback) {
+    onData(stream, session, callback) {
       const chunks: Buffer[] = []
       stream.on('data', (chunk: Buffer) => chunks.push(chunk))
       stream.on('end', async () => {
@@ -48,6 +50,10 @@ export async function startMailCapture(dir: string): Promise<number> {
             text: parsed.text ?? '',
             html: typeof parsed.html === 'string' ? parsed.html : '',
             links: linksIn(parsed.text ?? ''),
+            envelope: {
+              from: session.envelope.mailFrom ? session.envelope.mailFrom.address : '',
+              to: session.envelope.rcptTo.map(r => r.address),
+            },
           }
           await writeFile(resolve(dir, `${id}.eml`), raw)
           await writeFile(resolve(dir, `${id}.json`), JSON.stringify(mail, null, 2))

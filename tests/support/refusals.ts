@@ -12,7 +12,9 @@ const INTERNALS = /\b(?:SQLITE\w*|libsql|TypeError|ReferenceError|RangeError|Syn
 export function unreadable(message: unknown): string | null {
   if (typeof message !== 'string') return `data.message is ${message === undefined ? 'missing' : typeof message}`
   if (message.length < 8 || message.length > 600) return `data.message has ${message.length} characters: ${JSON.stringify(message)}`
-  if (!/^[A-Z0-9“"'‘]/.test(message) || !/\s/.test(message) || !/[a-z]/.test(message)) return `data.message is not a sentence: ${JSON.stringify(message)}`
+  // A sentence: words, and a full stop (or ? ! or a closing quote) at the end. Not a capital at the
+  // start: a message may begin with a name as the person wrote it ("ref is archived. …").
+  if (!/\p{L}{2,}\s+\S/u.test(message) || !/[.?!”")]$/.test(message.trim())) return `data.message is not a sentence: ${JSON.stringify(message)}`
   if (INTERNALS.test(message)) return `data.message shows internals: ${JSON.stringify(message)}`
   return null
 }

@@ -7,7 +7,7 @@ import { createServer } from 'node:net'
 import { tmpdir } from 'node:os'
 import { join, resolve } from 'node:path'
 
-export interface CapturedMail { id: string, to: string[], subject: string, text: string, html: string, links: string[] }
+export interface CapturedMail { id: string, to: string[], subject: string, text: string, html: string, links: string[], envelope: { from: string, to: string[] } }
 
 export interface TestServer {
   url: string

@@ -18,8 +18,9 @@ export interface WalkOptions {
   emails?: readonly string[]
   /** Values for fields by key name, where the schema's shape says too little (a refine on a date). */
   hints?: Record<string, fc.Arbitrary<unknown>>
-  /** In hostile mode a node stays valid this many times for each time it is junk (default 5). */
+  /** In hostile mode a node stays valid validWeight times for every junkWeight times it is junk (default 5 to 1). */
   validWeight?: number
+  junkWeight?: number
   /** Longest array generated where the schema allows more (default 3); over-limit arrays come on top. */
   maxArray?: number
   /** hostile(): how many wholly valid-ish values for every 6 broken ones (default 2). Lower it where a valid body is costly (a password hash). */
@@ -116,6 +117,7 @@ class Walker {
   private readonly emails: readonly string[]
   private readonly hints: Record<string, fc.Arbitrary<unknown>>
   private readonly validWeight: number
+  private readonly junkWeight: number
   private readonly maxArray: number
 
   constructor(private readonly options: WalkOptions, private readonly hostile: boolean) {
@@ -123,13 +125,14 @@ class Walker {
     this.emails = options.emails ?? []
     this.hints = options.hints ?? {}
     this.validWeight = options.validWeight ?? 5
+    this.junkWeight = options.junkWeight ?? 1
     this.maxArray = options.maxArray ?? 3
   }
 
   /** A node: in hostile mode sometimes junk instead of the shape. */
   node(schema: z.ZodType, key?: string): fc.Arbitrary<unknown> {
     const shaped = key !== undefined && this.hints[key] ? this.hints[key]! : this.shape(schema)
-    return this.hostile ? fc.oneof({ weight: this.validWeight, arbitrary: shaped }, { weight: 1, arbitrary: junk }) : shaped
+    return this.hostile ? fc.oneof({ weight: this.validWeight, arbitrary: shaped }, { weight: this.junkWeight, arbitrary: junk }) : shaped
   }
 
   private uuid(): fc.Arbitrary<string> {
@@ -206,7 +209,10 @@ class Walker {
     })
     if (!this.hostile) return built
     const extraKey = fc.oneof(fc.constantFrom(...PRIVILEGED_KEYS), fc.string({ maxLength: 12 }))
-    return fc.tuple(built, fc.option(fc.nat(entries.length), { freq: 6 }), fc.option(fc.dictionary(extraKey, junk, { maxKeys: 3 }), { freq: 6 }))
+    // A key left out one time in six, extra keys one time in three.
+    const drop = fc.oneof({ weight: 5, arbitrary: fc.constant(null) }, { weight: 1, arbitrary: fc.nat(Math.max(0, entries.length - 1)) })
+    const extra = fc.oneof({ weight: 2, arbitrary: fc.constant(null) }, { weight: 1, arbitrary: fc.dictionary(extraKey, junk, { minKeys: 1, maxKeys: 3 }) })
+    return fc.tuple(built, drop, extra)
       .map(([obj, drop, extra]) => {
         const dropped = drop !== null ? entries[drop]?.[0] : undefined
         const out = Object.fromEntries(Object.entries(obj).filter(([key]) => key !== dropped))
