@@ -58,13 +58,30 @@ export async function downloadTabletData(page, base = '') {
 }
 
 /**
- * Opens Today and waits until everything on the tablet is on the server and the tablet has pulled
- * what changed: the state a coach's tablet is in between lessons.
+ * Opens Today and waits until every lesson, spot check and mark on the tablet is on the server
+ * (IndexedDB says synced) and the network is quiet: the state a coach's tablet is in between lessons.
  */
 export async function settleTablet(page, base = '') {
   await downloadTabletData(page, base)
-  await page.getByText('Nothing waiting: everything on this tablet is on the server.').waitFor({ timeout: 60_000 })
-  await page.getByText(/^Last sent /).waitFor({ timeout: 60_000 })
+  await page.waitForFunction(() => new Promise((resolve) => {
+    const open = indexedDB.open('fourfold')
+    open.onerror = () => resolve(false)
+    open.onsuccess = () => {
+      const db = open.result
+      const stores = ['lessons', 'events', 'checks', 'checkEvents'].filter(name => db.objectStoreNames.contains(name))
+      const tx = db.transaction(stores, 'readonly')
+      let waiting = 0
+      for (const name of stores) {
+        const count = tx.objectStore(name).index('synced').count(0)
+        count.onsuccess = () => (waiting += count.result)
+      }
+      tx.oncomplete = () => {
+        db.close()
+        resolve(waiting === 0)
+      }
+      tx.onerror = () => resolve(false)
+    }
+  }), undefined, { timeout: 60_000, polling: 500 })
   await page.waitForLoadState('networkidle')
 }
 
