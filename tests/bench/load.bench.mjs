@@ -8,6 +8,7 @@
 //   ... -- --only two                     one of the runs (one | two), to look into it; the other's keys are null
 //   ... -- --output DIR                   runs another build's output folder instead (to compare two builds)
 //   ... -- --server-logs DIR              writes the end of each server's output (20 kB) to DIR, kept after the run
+//   ... -- --cpu-prof                     the measured servers write V8 CPU profiles to a folder in the temp folder (kept)
 //
 // Each tablet is its own coach, signed in through an invitation read from the captured mail. It
 // builds a push of a few lessons' events (lib/sync-records.mjs: presentations, try-outs T1–T4,
@@ -26,7 +27,7 @@
 import { randomBytes } from 'node:crypto'
 import { existsSync, mkdirSync, writeFileSync } from 'node:fs'
 import { copyFile } from 'node:fs/promises'
-import { cpus } from 'node:os'
+import { cpus, tmpdir } from 'node:os'
 import { join, resolve } from 'node:path'
 import autocannon from 'autocannon'
 import { createClient } from '@libsql/client'
@@ -57,6 +58,10 @@ if (only !== null && only !== 'one' && only !== 'two') throw new Error('--only t
 const otherOutput = stringOption('--output')
 const serverLogs = args.includes('--server-logs') ? resolve(args[args.indexOf('--server-logs') + 1] ?? '.') : null
 if (serverLogs) mkdirSync(serverLogs, { recursive: true })
+// Kept after the run (outside the checkout), for Chrome DevTools.
+const profileDir = args.includes('--cpu-prof') ? join(tmpdir(), `fourfold-load-profile-${Date.now()}`) : null
+if (profileDir) mkdirSync(profileDir, { recursive: true })
+const measured = profileDir ? { nodeArgs: ['--cpu-prof', `--cpu-prof-dir=${profileDir}`] } : {}
 
 function stringOption(name) {
   const i = args.indexOf(name)
@@ -224,13 +229,13 @@ async function main() {
   let two = null
   if (only !== 'two') {
     const oneUrl = await copyOf('one')
-    one = await loadRun('One process', [await startServer(entry, 'one', { DATABASE_URL: oneUrl, NUXT_SESSION_PASSWORD: sessionPassword })], oneUrl, world)
+    one = await loadRun('One process', [await startServer(entry, 'one', { DATABASE_URL: oneUrl, NUXT_SESSION_PASSWORD: sessionPassword }, measured)], oneUrl, world)
   }
   if (only !== 'one') {
     const twoUrl = await copyOf('two')
     // Started one after the other, so the second finds the migrations applied.
-    const a = await startServer(entry, 'A', { DATABASE_URL: twoUrl, NUXT_SESSION_PASSWORD: sessionPassword })
-    const b = await startServer(entry, 'B', { DATABASE_URL: twoUrl, NUXT_SESSION_PASSWORD: sessionPassword })
+    const a = await startServer(entry, 'A', { DATABASE_URL: twoUrl, NUXT_SESSION_PASSWORD: sessionPassword }, measured)
+    const b = await startServer(entry, 'B', { DATABASE_URL: twoUrl, NUXT_SESSION_PASSWORD: sessionPassword }, measured)
     two = await loadRun('Two processes, one file', [a, b], twoUrl, world)
   }
   const loadAfter = loadAverage()
@@ -291,6 +296,7 @@ function report(one, two, loadBefore, loadAfter) {
   log(verdict(!figures.doubled && !figures.two_process_doubled, `doubled ${figures.doubled} / ${figures.two_process_doubled} (must be 0)`))
   log(verdict(figures.unexplained_rows === 0, `rows the servers did not acknowledge and no unanswered push explains: ${figures.unexplained_rows} (must be 0)`))
   if (two) log(verdict(figures.two_process_errors === 0, `two_process_errors ${figures.two_process_errors} (5xx or busy/locked errors with two processes; goal 0)`))
+  if (profileDir) log(`CPU profiles of the servers: ${profileDir}/ (open in Chrome DevTools → Performance)`)
   log(`Load average at the start ${loadBefore}, at the end ${loadAfter} on ${cpus().length} CPUs. Figures are only comparable from a quiet machine.`)
   log(JSON.stringify(figures))
 }
