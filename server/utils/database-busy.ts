@@ -5,7 +5,6 @@
 // a message a person can act on, never a bare 500.
 import { createClient, type Client } from '@libsql/client'
 import { createError } from 'h3'
-import { databaseUrl } from './db'
 
 /** How long a write waits for another process's hold on the lock: the busy timeout of db.ts. */
 export const BUSY_TIMEOUT_MS = 5000
@@ -41,11 +40,22 @@ export function retryAfterOf(error: unknown): number | null {
  * locking, so there the answer is always "try".
  */
 let probe: Client | undefined
+/** The file useDb() opened (db.ts tells it); none, as in unit tests that hand a client in: nothing to probe. */
+let probedUrl: string | undefined
+
+/** Called by useDb() for a local file database: the probe asks about this one. */
+export function probeWriteLockOf(url: string): void {
+  probedUrl = url
+}
+
+/** The local file whose write lock this process's writes wait for, or undefined (see probedUrl). */
+export function writeLockDatabaseUrl(): string | undefined {
+  return probedUrl
+}
 
 export async function lockIsFree(): Promise<boolean> {
-  const url = databaseUrl()
-  if (!url.startsWith('file:')) return true
-  probe ??= createClient({ url, timeout: 0, concurrency: 1 })
+  if (!probedUrl) return true
+  probe ??= createClient({ url: probedUrl, timeout: 0, concurrency: 1 })
   try {
     await probe.executeMultiple('BEGIN IMMEDIATE; ROLLBACK')
     return true

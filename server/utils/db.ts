@@ -59,6 +59,8 @@ async function open(): Promise<Db> {
       // Another process's hold on the write lock is waited for off the event loop, and a write
       // that gives up leaves no statement stuck on a pooled connection (write-begin.ts).
       beginWritesWithoutStuckStatements(client, BUSY_TIMEOUT_MS)
+      // The write queue's probe asks about this file before each write (database-busy.ts).
+      probeWriteLockOf(url)
     }
   }
   const db = drizzle(client, { schema })

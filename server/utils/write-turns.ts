@@ -10,7 +10,7 @@
 // write queue; only for a local file (a libSQL server orders its writers itself).
 import { randomUUID } from 'node:crypto'
 import { readFileSync, writeFileSync } from 'node:fs'
-import { databaseUrl } from './db'
+import { writeLockDatabaseUrl } from './database-busy'
 
 /** This process's name in the file. */
 const SELF = `${process.pid}.${randomUUID().slice(0, 8)}`
@@ -24,8 +24,8 @@ const SETTLE_MS = 2
 type Turn = { who: string, state: 'waiting' | 'writing', at: number }
 
 function turnFile(): string | null {
-  const url = databaseUrl()
-  if (!url.startsWith('file:')) return null
+  const url = writeLockDatabaseUrl()
+  if (!url?.startsWith('file:')) return null
   const path = url.slice('file:'.length).split('?')[0]
   return path && path !== ':memory:' ? `${path}-write-turn` : null
 }

@@ -7,10 +7,15 @@
 import { createClient } from '@libsql/client'
 import { serialiseWrite } from '../../server/utils/write-lock'
 import { beginWritesWithoutStuckStatements } from '../../server/utils/write-begin'
+import { probeWriteLockOf } from '../../server/utils/database-busy'
 
 const [url, mode, name, durationMs, holdMs] = process.argv.slice(2) as [string, 'polite' | 'greedy', string, string, string]
 const client = createClient({ url, timeout: 5000 })
-if (mode === 'polite') beginWritesWithoutStuckStatements(client, 5000)
+if (mode === 'polite') {
+  beginWritesWithoutStuckStatements(client, 5000)
+  // As useDb() does: the write queue's probe and the turns file are about this database.
+  probeWriteLockOf(url)
+}
 await client.execute('select 1')
 const sleep = (ms: number) => new Promise(resolve => setTimeout(resolve, ms))
 

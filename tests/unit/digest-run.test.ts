@@ -36,8 +36,6 @@ const now = new Date(2026, 11, 2, 6, 0).getTime()
 beforeAll(async () => {
   dir = await mkdtemp(join(tmpdir(), 'fourfold-digest-'))
   const url = `file:${join(dir, 'digest.db')}`
-  // The write queue's lock probe opens the configured database (server/utils/database-busy.ts).
-  process.env.DATABASE_URL = url
   client = createClient({ url, timeout: 5000 })
   db = drizzle(client, { schema })
   await migrate(db, { migrationsFolder: resolve('drizzle') })

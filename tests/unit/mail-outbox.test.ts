@@ -27,8 +27,6 @@ let failure: Error | null = null
 beforeAll(async () => {
   dir = await mkdtemp(join(tmpdir(), 'fourfold-outbox-'))
   const url = `file:${join(dir, 'outbox.db')}`
-  // The write queue's lock probe opens the configured database (server/utils/database-busy.ts).
-  process.env.DATABASE_URL = url
   client = createClient({ url, timeout: 5000 })
   db = drizzle(client, { schema })
   await migrate(db, { migrationsFolder: resolve('drizzle') })

@@ -12,7 +12,7 @@ import { join } from 'node:path'
 import { createClient, type Client, type Transaction } from '@libsql/client'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { serialiseWrite } from '../../server/utils/write-lock'
-import { isDatabaseBusy, retryAfterOf } from '../../server/utils/database-busy'
+import { isDatabaseBusy, probeWriteLockOf, retryAfterOf } from '../../server/utils/database-busy'
 
 let dir: string
 let app: Client
@@ -21,8 +21,8 @@ let other: Client
 beforeAll(async () => {
   dir = await mkdtemp(join(tmpdir(), 'fourfold-write-lock-'))
   const url = `file:${join(dir, 'lock.db')}`
-  // lockIsFree() opens its probe on the configured database, as the server does.
-  process.env.DATABASE_URL = url
+  // The probe asks about this file, as useDb() arranges on the server.
+  probeWriteLockOf(url)
   // A short busy timeout keeps the test quick; the server's is 5 s (db.ts).
   app = createClient({ url, timeout: 300 })
   other = createClient({ url, timeout: 300 })
