@@ -19,8 +19,6 @@ const clients: Client[] = []
 beforeAll(async () => {
   dir = await mkdtemp(join(tmpdir(), 'fourfold-write-begin-'))
   url = `file:${join(dir, 'begin.db')}`
-  // write-turns.ts writes its file beside the configured database.
-  process.env.DATABASE_URL = url
   holder = createClient({ url, timeout: 300 })
   await holder.execute('PRAGMA journal_mode = WAL')
   // The statement that takes the lock names the migrations table, which the app always has.
