@@ -4,9 +4,11 @@
 // browser the compiled parser buys nothing a person notices (form-sized input), so it is off here;
 // the server keeps it (the sync merge validates thousands of events). Set at module top level, and
 // this plugin sorts first ("0."), because the probe runs when the first object schema is built,
-// which can be while a later plugin's imports load.
-import { z } from 'zod'
+// which can be while a later plugin's imports load. `config` comes from zod's core module (the one
+// the schemas share) rather than `z`: importing `z` here put much of zod into the script every page
+// loads, the lesson runner's included (its scripts are budgeted, tests/budgets).
+import { config } from 'zod/v4/core'
 
-z.config({ jitless: true })
+config({ jitless: true })
 
 export default defineNuxtPlugin(() => {})

@@ -5,8 +5,7 @@ import { and, eq, inArray } from 'drizzle-orm'
 import { breakdownVersions, jobs, learners } from '../db/schema'
 import type { BreakdownContent } from '../../shared/schemas/breakdown'
 import { MAX_FOCUS, type RetrainingEntry } from '../../shared/types/retraining'
-import { changedElementIds } from '../../shared/utils/refresher'
-import { changeLines } from '../../shared/utils/refresher-changes'
+import { changedElementIds, changeLines } from '../../shared/utils/refresher-changes'
 
 const CHUNK = 500
 

@@ -3,7 +3,7 @@
 // Built on diffBreakdowns (lineage ids), so the lines match the compare page and the refresher's focus.
 import type { BreakdownContent } from '../schemas/breakdown'
 import { diffBreakdowns, type DiffEntry } from './breakdown-diff'
-import { changedElementIds, focusContent } from './refresher'
+import { focusContent } from './refresher'
 
 export interface ChangeLine {
   id: string
@@ -13,6 +13,13 @@ export interface ChangeLine {
   words: string
   /** True when a refresher presents and tries out this element (added or changed step or key point). */
   taught: boolean
+}
+
+/** Step and key point ids of `newer` that were added or changed since `older` (removed ones cannot be taught). */
+export function changedElementIds(older: BreakdownContent, newer: BreakdownContent): string[] {
+  return diffBreakdowns(older, newer)
+    .filter(e => e.level !== 'unit' && (e.status === 'added' || e.status === 'changed') && e.after)
+    .map(e => e.id)
 }
 
 const KIND_WORDS: Record<string, string> = { quality: 'quality', safety: 'safety', knack: 'knack' }

@@ -1,15 +1,9 @@
 // A refresher lesson after a new breakdown version presents and tries out only what changed
 // (DESIGN.md §8, "Retraining"). The tablet and the server both narrow the pinned content with
-// focusContent, so a refresher is scored over the same elements on both sides.
+// focusContent, so a refresher is scored over the same elements on both sides. Which elements
+// changed is refresher-changes.ts's business: this file stays free of the diff code, because the
+// lesson runner loads it and the runner's scripts are budgeted.
 import type { BreakdownContent } from '../schemas/breakdown'
-import { diffBreakdowns } from './breakdown-diff'
-
-/** Step and key point ids of `newer` that were added or changed since `older` (removed ones cannot be taught). */
-export function changedElementIds(older: BreakdownContent, newer: BreakdownContent): string[] {
-  return diffBreakdowns(older, newer)
-    .filter(e => e.level !== 'unit' && (e.status === 'added' || e.status === 'changed') && e.after)
-    .map(e => e.id)
-}
 
 /**
  * The content a lesson works on: everything when `focus` is null; otherwise the steps named in

@@ -1,8 +1,8 @@
 // Refreshers after a new breakdown version: which elements are taught again (changedElementIds),
 // what the refresher lesson works on (focusContent), and the change list in words (changeLines).
 import { describe, expect, it } from 'vitest'
-import { changedElementIds, focusContent } from '../../shared/utils/refresher'
-import { changeLines, focusWords } from '../../shared/utils/refresher-changes'
+import { focusContent } from '../../shared/utils/refresher'
+import { changedElementIds, changeLines, focusWords } from '../../shared/utils/refresher-changes'
 import { withBreakdownNumbers } from '../../shared/utils/refresher-cards'
 import { passCards } from '../../shared/utils/lesson-flow'
 import { elementsOf, replayLesson } from '../../shared/utils/lesson-state'
