@@ -3,7 +3,8 @@
 // learner, auditor), every page under app/pages/ that the visitor may open (tests/support/screens.ts,
 // kept complete by tests/unit/screens-covered.test.ts) is opened with real ids, photographed (whole
 // page) into tests/.artifacts/walk/ and checked with axe-core (WCAG 2.2 AA rules). Any console
-// error, uncaught page error, failed request or 4xx/5xx answer to the page's own requests fails it.
+// error, uncaught page error, failed request or 4xx/5xx answer to the page's own requests fails it,
+// and so does a screen wider than the tablet.
 // A coach's or admin's tablet first downloads its data on Today and starts a lesson and a spot check
 // (they live on the tablet), so the runners open on real ones. Pages a role may not open are
 // opened too (landscape only): the app sends the visitor to Today, again without an error.
@@ -18,13 +19,16 @@ import type { Browser, Page } from 'playwright-core'
 import { DEMO, DEMO_PASSWORD, startCheck, startLesson } from '../bench/lib/demo-tablet.mjs'
 import { tokenFrom } from '../support/accounts'
 import { axeViolations } from '../support/axe'
-import { TABLET_LANDSCAPE, TABLET_VIEWPORTS, launchBrowser, openContext, waitForHydration } from '../support/browser'
+import { TABLET_LANDSCAPE, TABLET_VIEWPORTS, launchBrowser, openContext, overflowsSideways, waitForHydration } from '../support/browser'
 import { Client, uniqueAddress } from '../support/http'
 import { SCREENS, screenName, type Visitor, type WalkIds } from '../support/screens'
 import { startServer, type TestServer } from '../support/server'
 import { ROLES } from '../../shared/types/roles'
 
 const SHOTS = 'tests/.artifacts/walk'
+// The printable sheets are an A4 page (210 mm, 794 px at 96 px per inch) on screen as on paper, a
+// little wider than a portrait tablet: they may scroll sideways there. No other screen may.
+const A4_SHEETS = new Set(['/versions/:id/print', '/lessons/review/:id/print'])
 const VISITORS: Visitor[] = ['signed-out', ...ROLES]
 
 let dir: string
@@ -154,6 +158,7 @@ describe.each(TABLET_VIEWPORTS)('every screen at $name', (viewport) => {
     const watch = watchProblems(page, server.url, who)
     const axe: string[] = []
     const landed: string[] = []
+    const sideways: string[] = []
     try {
       if (who !== 'signed-out') {
         const login = await context.request.post('/api/auth/login', { data: { email: DEMO[who], password: DEMO_PASSWORD } })
@@ -180,6 +185,7 @@ describe.each(TABLET_VIEWPORTS)('every screen at $name', (viewport) => {
         await open(page, path)
         const at = new URL(page.url())
         if (at.pathname !== new URL(path, server.url).pathname) landed.push(`${path} went to ${at.pathname}`)
+        if (!A4_SHEETS.has(screen.route) && await overflowsSideways(page)) sideways.push(path)
         await page.screenshot({ path: `${SHOTS}/${viewport.width}x${viewport.height}-${who}-${name}.png`, fullPage: true })
         for (const v of await axeViolations(page)) axe.push(`${path}: ${v.id} (${v.impact}) ${v.help} — ${v.nodes.join(', ')}`)
       }
@@ -201,6 +207,7 @@ describe.each(TABLET_VIEWPORTS)('every screen at $name', (viewport) => {
       await context.close()
     }
     expect(landed, 'screens that sent this visitor elsewhere').toEqual([])
+    expect(sideways, 'screens wider than the tablet (a sideways scroll)').toEqual([])
     expect(axe, 'axe-core violations').toEqual([])
     expect(watch.problems, 'console errors and failed requests').toEqual([])
   }, 300_000)
