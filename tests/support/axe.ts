@@ -1,9 +1,7 @@
 // axe-core (the npm package, injected into the page) with the WCAG 2.2 AA rule set, as the
 // browser tests run it.
-import { readFileSync } from 'node:fs'
 import type { Page } from 'playwright-core'
-
-let axeSource: string | undefined
+import { addToolScript } from './browser'
 
 export interface AxeViolation { id: string, impact: string, help: string, nodes: string[] }
 
@@ -11,10 +9,8 @@ export interface AxeViolation { id: string, impact: string, help: string, nodes:
 export async function axeViolations(page: Page): Promise<AxeViolation[]> {
   // Colours are judged once every transition has finished, not halfway through one.
   await page.evaluate(() => Promise.all(document.getAnimations().map(a => a.finished.catch(() => undefined))))
-  // Evaluated through the DevTools protocol rather than added as a <script>: the app's
-  // Content-Security-Policy rightly refuses inline scripts, and the page is tested with it on.
-  axeSource ??= readFileSync('node_modules/axe-core/axe.min.js', 'utf8')
-  if (!(await page.evaluate(() => 'axe' in window))) await page.evaluate(axeSource)
+  // Over the DevTools protocol (addToolScript): the app's Content-Security-Policy refuses inline scripts.
+  if (!(await page.evaluate(() => 'axe' in window))) await addToolScript(page, 'node_modules/axe-core/axe.min.js')
   return page.evaluate(async () => {
     const axe = (window as unknown as { axe: { run: (ctx: Document, o: object) => Promise<{ violations: Array<{ id: string, impact: string, help: string, nodes: Array<{ target: string[] }> }> }> } }).axe
     const result = await axe.run(document, { runOnly: { type: 'tag', values: ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa', 'wcag22aa'] } })
