@@ -71,7 +71,7 @@ export function assertMayReadLearner(caller: Caller, learnerUserId: string | nul
  * cookie out of this request first makes the replacement a new session.
  */
 function forgetRequestSession(event: H3Event) {
-  const name = useRuntimeConfig(event).session?.name || 'nuxt-session'
+  const name = useRuntimeConfig().session?.name || 'nuxt-session'
   const header = event.node.req.headers.cookie
   if (header) event.node.req.headers.cookie = header.split(';').filter(part => part.split('=')[0]!.trim() !== name).join(';')
   if (event.context.sessions) Reflect.deleteProperty(event.context.sessions, name)

@@ -6,7 +6,7 @@
 // sync clients, curl, scripts) and carries no ambient browser credentials to abuse, so it passes.
 // Pure, so the rule is tested on its own (tests/unit/request-origin.test.ts).
 
-const SAFE_METHODS = new Set(['GET', 'HEAD', 'OPTIONS'])
+export const SAFE_METHODS = new Set(['GET', 'HEAD', 'OPTIONS'])
 
 export interface RequestOriginFacts {
   method: string
