@@ -1,4 +1,4 @@
-// JS budgets per screen, checked by size-limit (@size-limit/file, gzip level 9), part of `npm test`.
+// JS budgets per screen, checked by size-limit (@size-limit/file, gzip level 9), run by `npm run test:budgets` (not yet part of `npm test`).
 //
 //   npm run budget:js                 the existing .output (FOURFOLD_OUTPUT=DIR: another build's copy)
 //

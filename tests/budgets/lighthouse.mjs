@@ -1,4 +1,4 @@
-// Lighthouse budgets, part of `npm test`: sign-in, Today (signed in) and the lesson runner, each
+// Lighthouse budgets, run by `npm run test:budgets` (not yet part of `npm test`): sign-in, Today (signed in) and the lesson runner, each
 // audited by Lighthouse 12 in Debian's Chromium (chrome-launcher with CHROME_PATH; no browser is
 // downloaded) with its default mobile preset and simulated throttling.
 //
