@@ -13,7 +13,7 @@ import { createClient, type Transaction } from '@libsql/client'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, CDPSession, Page } from 'playwright-core'
 import { PASSWORD, addMember, signUp } from '../support/accounts'
-import { TABLET_LANDSCAPE, launchBrowser, openContext, visit, waitForHydration, type OpenedContext } from '../support/browser'
+import { idbRows, launchBrowser, openContext, TABLET_LANDSCAPE, visit, waitForHydration, type OpenedContext } from '../support/browser'
 import { publishedJob, rosterLearner } from '../support/breakdowns'
 import { startServer, type TestServer } from '../support/server'
 import { sql } from '../support/db'
@@ -49,30 +49,8 @@ afterAll(async () => {
   await server?.stop()
 })
 
-/** Every row of one store of the tablet's IndexedDB, read with the raw API (not through the app). */
-async function idbRows<T>(store: string): Promise<T[]> {
-  return page.evaluate(name => new Promise<T[]>((resolve, reject) => {
-    const open = indexedDB.open('fourfold')
-    open.onerror = () => reject(open.error)
-    open.onsuccess = () => {
-      const db = open.result
-      if (!db.objectStoreNames.contains(name)) {
-        db.close()
-        resolve([])
-        return
-      }
-      const req = db.transaction(name, 'readonly').objectStore(name).getAll()
-      req.onsuccess = () => {
-        db.close()
-        resolve(req.result as T[])
-      }
-      req.onerror = () => reject(req.error)
-    }
-  }), store)
-}
-
 interface StoredEvent { id: string, lessonId: string, pass: string, kind: string, elementId: string | null, value: string | null, seq: number, synced: number }
-const lessonMarks = async () => (await idbRows<StoredEvent>('events')).filter(e => e.lessonId === lessonId && e.kind === 'mark').sort((a, b) => a.seq - b.seq).map(e => e.value)
+const lessonMarks = async () => (await idbRows<StoredEvent>(page, 'events')).filter(e => e.lessonId === lessonId && e.kind === 'mark').sort((a, b) => a.seq - b.seq).map(e => e.value)
 
 const cursorOf = () => page.locator('main#main').evaluate(el => ({ stage: el.getAttribute('data-stage'), pass: el.getAttribute('data-pass'), index: Number(el.getAttribute('data-index')) }))
 const waitForCursor = (pass: string, index: number) => expect.poll(cursorOf).toMatchObject({ pass, index })
@@ -94,7 +72,7 @@ describe('the tablet\'s storage full', () => {
     const login = await opened.context.request.post('/api/auth/login', { data: { email: setup.coachEmail, password: PASSWORD } })
     expect(login.status()).toBe(200)
     await visit(page, '/')
-    await expect.poll(async () => (await idbRows<{ id: string }>('versions')).map(v => v.id), { timeout: 20_000 }).toEqual([setup.versionId])
+    await expect.poll(async () => (await idbRows<{ id: string }>(page, 'versions')).map(v => v.id), { timeout: 20_000 }).toEqual([setup.versionId])
 
     await visit(page, '/lessons/new')
     await page.getByLabel('Type the learner\'s name').fill('tamsin')
@@ -194,7 +172,7 @@ describe('the database write lock held by another process while the tablet syncs
     await expect.poll(() => problem.innerText()).toContain('The server is busy just now. Everything stays on this tablet. It is sent again by itself in 5 seconds.')
     await problem.screenshot({ path: '/tmp/faults-sync-busy.png' })
     // The outbox is intact: the lesson's marks are still waiting on the tablet.
-    const waiting = (await idbRows<StoredEvent>('events')).filter(e => e.lessonId === lessonId)
+    const waiting = (await idbRows<StoredEvent>(page, 'events')).filter(e => e.lessonId === lessonId)
     expect(waiting.length).toBeGreaterThan(3)
     expect(waiting.some(e => e.synced === 0)).toBe(true)
     expect(await page.getByTestId('sync-waiting').innerText()).toMatch(/^Waiting to send: /)
@@ -209,7 +187,7 @@ describe('the database write lock held by another process while the tablet syncs
     expect(pushStarts[1]! - pushes[0]!.at).toBeGreaterThanOrEqual(4500)
     expect(pushes.at(-1)!.status).toBe(200)
 
-    const onTablet = (await idbRows<StoredEvent>('events')).filter(e => e.lessonId === lessonId)
+    const onTablet = (await idbRows<StoredEvent>(page, 'events')).filter(e => e.lessonId === lessonId)
     expect(onTablet.every(e => e.synced === 1)).toBe(true)
     const stored = await sql(server.databaseUrl, 'select count(*) as n, count(distinct id) as d from lesson_events where lesson_id = ?', [lessonId])
     expect(Number(stored.rows[0]!.n)).toBe(onTablet.length)

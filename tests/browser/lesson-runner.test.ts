@@ -8,13 +8,14 @@ import sharp from 'sharp'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, BrowserContext, Page } from 'playwright-core'
 import { PASSWORD, addMember, signUp } from '../support/accounts'
-import { addToolScript, TABLET_VIEWPORTS, launchBrowser, openContext, overflowsSideways, smallTargets, visit, waitForHydration, type Viewport } from '../support/browser'
+import { idbRows, launchBrowser, openContext, overflowsSideways, smallTargets, TABLET_VIEWPORTS, visit, waitForHydration, type Viewport } from '../support/browser'
 import { photoForm } from '../support/photos'
 import { startServer, type TestServer } from '../support/server'
 import type { Client } from '../support/http'
 import type { BreakdownContent } from '../../shared/schemas/breakdown'
 import { replayLesson } from '../../shared/utils/lesson-state'
 import type { LessonEvent } from '../../shared/utils/lesson-events'
+import { axeViolations } from '../support/axe'
 
 let server: TestServer
 let browser: Browser
@@ -91,39 +92,6 @@ async function setUpOrganisation(label: string) {
   const learner = await (coach.client as Client).post('/api/learners', { name: 'Ilse Brannagh' })
   if (learner.status !== 201) throw new Error(`learner: ${learner.status} ${learner.text}`)
   return { coachEmail: coach.email, content, versionId: draft.body.id as string, learnerId: learner.body.id as string, photoId: upload.body.id as string }
-}
-
-/** Every row of one store of the tablet's IndexedDB, read with the raw API (not through the app). */
-async function idbRows<T>(page: Page, store: string): Promise<T[]> {
-  return page.evaluate(name => new Promise<T[]>((resolve, reject) => {
-    const open = indexedDB.open('fourfold')
-    open.onerror = () => reject(open.error)
-    open.onsuccess = () => {
-      const db = open.result
-      if (!db.objectStoreNames.contains(name)) {
-        db.close()
-        resolve([])
-        return
-      }
-      const req = db.transaction(name, 'readonly').objectStore(name).getAll()
-      req.onsuccess = () => {
-        db.close()
-        resolve(req.result as T[])
-      }
-      req.onerror = () => reject(req.error)
-    }
-  }), store)
-}
-
-async function axeViolations(page: Page) {
-  // Colours are judged once every transition has finished, not halfway through one.
-  await page.evaluate(() => Promise.all(document.getAnimations().map(a => a.finished.catch(() => undefined))))
-  if (!(await page.evaluate(() => 'axe' in window))) await addToolScript(page, 'node_modules/axe-core/axe.min.js')
-  return page.evaluate(async () => {
-    const axe = (window as unknown as { axe: { run: (ctx: Document, o: object) => Promise<{ violations: Array<{ id: string, impact: string, help: string, nodes: Array<{ target: string[] }> }> }> } }).axe
-    const result = await axe.run(document, { runOnly: { type: 'tag', values: ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa', 'wcag22aa'] } })
-    return result.violations.map(v => ({ id: v.id, impact: v.impact, help: v.help, nodes: v.nodes.slice(0, 5).map(n => n.target.join(' ')) }))
-  })
 }
 
 /** The smallest text on screen (elements with their own visible text), with a few examples. */

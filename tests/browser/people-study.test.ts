@@ -8,13 +8,14 @@ import sharp from 'sharp'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
 import { PASSWORD, addMember, signUp } from '../support/accounts'
-import { addToolScript, TABLET_VIEWPORTS, launchBrowser, openContext, overflowsSideways, routerPush, smallTargets, visit, waitForHydration, type Viewport } from '../support/browser'
+import { TABLET_VIEWPORTS, launchBrowser, openContext, overflowsSideways, routerPush, smallTargets, visit, waitForHydration, type Viewport } from '../support/browser'
 import { photoForm } from '../support/photos'
 import { startServer, type TestServer } from '../support/server'
 import { linkedLearner, spotCheck, teach, type Taught } from '../support/people'
 import type { Client } from '../support/http'
 import type { BreakdownContent } from '../../shared/schemas/breakdown'
 import { randomUUID } from 'node:crypto'
+import { axeViolations } from '../support/axe'
 
 let server: TestServer
 let browser: Browser
@@ -86,16 +87,6 @@ async function bakery(label: string) {
   await spotCheck(coach, sealer, { daysAgo: 3, lessonId: sealed.lessonId, marks: { [sealer.content.units[0]!.steps[0]!.keyPoints[0]!.id]: 'missed' } })
   await teach(coach, weigher, { daysAgo: 0 })
   return { admin, coach, ilse, mirela, photos, slicer }
-}
-
-async function axeViolations(page: Page) {
-  await page.evaluate(() => Promise.all(document.getAnimations().map(a => a.finished.catch(() => undefined))))
-  if (!(await page.evaluate(() => 'axe' in window))) await addToolScript(page, 'node_modules/axe-core/axe.min.js')
-  return page.evaluate(async () => {
-    const axe = (window as unknown as { axe: { run: (ctx: Document, o: object) => Promise<{ violations: Array<{ id: string, impact: string, help: string, nodes: Array<{ target: string[] }> }> }> } }).axe
-    const result = await axe.run(document, { runOnly: { type: 'tag', values: ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa', 'wcag22aa'] } })
-    return result.violations.map(v => ({ id: v.id, impact: v.impact, help: v.help, nodes: v.nodes.slice(0, 5).map(n => n.target.join(' ')) }))
-  })
 }
 
 async function expectScreen(page: Page, viewport: Viewport, name: string) {

@@ -10,10 +10,11 @@ import { join } from 'node:path'
 import { promisify } from 'node:util'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
-import { addToolScript, TABLET_LANDSCAPE, TABLET_PORTRAIT, launchBrowser, openContext, overflowsSideways, routerPush, smallTargets, visit, type Viewport } from '../support/browser'
+import { TABLET_LANDSCAPE, TABLET_PORTRAIT, launchBrowser, openContext, overflowsSideways, routerPush, smallTargets, visit, type Viewport } from '../support/browser'
 import { startServer, type TestServer } from '../support/server'
 import type { PlanMatrix } from '../../shared/types/plan-matrix'
 import { dayStart, localDay, shortDate } from '../../shared/utils/training-status'
+import { axeViolations } from '../support/axe'
 
 const SHOTS = '/tmp/fourfold-screens'
 const DEMO_PASSWORD = 'bakery-demo-2026'
@@ -34,17 +35,6 @@ afterAll(async () => {
   await browser?.close()
   await server?.stop()
 })
-
-async function axeViolations(page: Page) {
-  // Colours are judged once every transition has finished, not halfway through one.
-  await page.evaluate(() => Promise.all(document.getAnimations().map(a => a.finished.catch(() => undefined))))
-  if (!(await page.evaluate(() => 'axe' in window))) await addToolScript(page, 'node_modules/axe-core/axe.min.js')
-  return page.evaluate(async () => {
-    const axe = (window as unknown as { axe: { run: (ctx: Document, o: object) => Promise<{ violations: Array<{ id: string, impact: string, help: string, nodes: Array<{ target: string[] }> }> }> } }).axe
-    const result = await axe.run(document, { runOnly: { type: 'tag', values: ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa', 'wcag22aa'] } })
-    return result.violations.map(v => ({ id: v.id, impact: v.impact, help: v.help, nodes: v.nodes.slice(0, 5).map(n => n.target.join(' ')) }))
-  })
-}
 
 const shot = (page: Page, viewport: Viewport, name: string) => page.screenshot({ path: `${SHOTS}/plan-${viewport.width}x${viewport.height}-${name}.png` })
 

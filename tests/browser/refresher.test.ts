@@ -8,7 +8,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
 import { PASSWORD, addMember, signUp } from '../support/accounts'
 import { cleanTryout, publishedJob, rosterLearner, slicerContent } from '../support/breakdowns'
-import { addToolScript, TABLET_VIEWPORTS, launchBrowser, openContext, overflowsSideways, smallTargets, visit, waitForHydration, type Viewport } from '../support/browser'
+import { addToolScript, idbRows, launchBrowser, openContext, overflowsSideways, smallTargets, TABLET_VIEWPORTS, visit, waitForHydration, type Viewport } from '../support/browser'
 import { startServer, type TestServer } from '../support/server'
 import type { BreakdownContent } from '../../shared/schemas/breakdown'
 
@@ -56,27 +56,6 @@ async function setUp(label: string) {
   const published = await admin.client.post(`/api/versions/${draft.body.id}/publish`, { changeNote: 'Guard opened fully; gloves for the blade set.' })
   if (published.status !== 200) throw new Error(`publish: ${published.status} ${published.text}`)
   return { coach, jobId: v1.jobId, learnerId, v2Id: draft.body.id as string, focus: [steps[1]!.id, newKeyPoint.id] }
-}
-
-async function idbRows<T>(page: Page, store: string): Promise<T[]> {
-  return page.evaluate(name => new Promise<T[]>((resolve, reject) => {
-    const open = indexedDB.open('fourfold')
-    open.onerror = () => reject(open.error)
-    open.onsuccess = () => {
-      const db = open.result
-      if (!db.objectStoreNames.contains(name)) {
-        db.close()
-        resolve([])
-        return
-      }
-      const req = db.transaction(name, 'readonly').objectStore(name).getAll()
-      req.onsuccess = () => {
-        db.close()
-        resolve(req.result as T[])
-      }
-      req.onerror = () => reject(req.error)
-    }
-  }), store)
 }
 
 async function axeViolations(page: Page, include?: string) {

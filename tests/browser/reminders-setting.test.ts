@@ -2,10 +2,11 @@
 // a coach turns it off and on, the server keeps it, axe-core finds no WCAG 2.2 AA violation, and a
 // learner (who never gets a digest) is not offered it. Screenshots go to /tmp for a look.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { Browser, Page } from 'playwright-core'
+import type { Browser } from 'playwright-core'
 import { PASSWORD, addMember, signUp } from '../support/accounts'
-import { addToolScript, TABLET_VIEWPORTS, launchBrowser, openContext, overflowsSideways, smallTargets, visit } from '../support/browser'
+import { TABLET_VIEWPORTS, launchBrowser, openContext, overflowsSideways, smallTargets, visit } from '../support/browser'
 import { startServer, type TestServer } from '../support/server'
+import { axeViolations } from '../support/axe'
 
 let server: TestServer
 let browser: Browser
@@ -24,16 +25,6 @@ afterAll(async () => {
   await browser?.close()
   await server?.stop()
 })
-
-async function axeViolations(page: Page) {
-  await page.evaluate(() => Promise.all(document.getAnimations().map(a => a.finished.catch(() => undefined))))
-  if (!(await page.evaluate(() => 'axe' in window))) await addToolScript(page, 'node_modules/axe-core/axe.min.js')
-  return page.evaluate(async () => {
-    const axe = (window as unknown as { axe: { run: (ctx: Document, o: object) => Promise<{ violations: Array<{ id: string, impact: string, help: string, nodes: Array<{ target: string[] }> }> }> } }).axe
-    const result = await axe.run(document, { runOnly: { type: 'tag', values: ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa', 'wcag22aa'] } })
-    return result.violations.map(v => ({ id: v.id, impact: v.impact, help: v.help, nodes: v.nodes.slice(0, 5).map(n => n.target.join(' ')) }))
-  })
-}
 
 describe.each(TABLET_VIEWPORTS)('the digest switch at $name', (viewport) => {
   it('a coach turns the daily digest off and on again; the server keeps it', async () => {

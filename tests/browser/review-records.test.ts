@@ -9,12 +9,13 @@ import { randomUUID } from 'node:crypto'
 import { mkdir, writeFile } from 'node:fs/promises'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, BrowserContext, Page } from 'playwright-core'
-import { addToolScript, TABLET_VIEWPORTS, launchBrowser, openContext, overflowsSideways, smallTargets, visit, type Viewport } from '../support/browser'
+import { TABLET_VIEWPORTS, launchBrowser, openContext, overflowsSideways, smallTargets, visit, type Viewport } from '../support/browser'
 import { startServer, type TestServer } from '../support/server'
 import { addMember, PASSWORD, signUp } from '../support/accounts'
 import { publishedJob, rosterLearner, slicerContent } from '../support/breakdowns'
 import { agreementWords, observerAgreement } from '../../shared/utils/agreement'
 import type { LessonEvent } from '../../shared/utils/lesson-events'
+import { axeViolations } from '../support/axe'
 
 const SHOTS = '/tmp/fourfold-screens'
 // A 1×1 PNG: the learner's signature as the signature pad would send it.
@@ -102,16 +103,6 @@ afterAll(async () => {
 async function signIn(context: BrowserContext, email: string) {
   const login = await context.request.post('/api/auth/login', { data: { email, password: PASSWORD } })
   expect(login.status()).toBe(200)
-}
-
-async function axeViolations(page: Page) {
-  await page.evaluate(() => Promise.all(document.getAnimations().map(a => a.finished.catch(() => undefined))))
-  if (!(await page.evaluate(() => 'axe' in window))) await addToolScript(page, 'node_modules/axe-core/axe.min.js')
-  return page.evaluate(async () => {
-    const axe = (window as unknown as { axe: { run: (ctx: Document, o: object) => Promise<{ violations: Array<{ id: string, impact: string, help: string, nodes: Array<{ target: string[] }> }> }> } }).axe
-    const result = await axe.run(document, { runOnly: { type: 'tag', values: ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa', 'wcag22aa'] } })
-    return result.violations.map(v => ({ id: v.id, impact: v.impact, help: v.help, nodes: v.nodes.slice(0, 5).map(n => n.target.join(' ')) }))
-  })
 }
 
 const shot = (page: Page, viewport: Viewport, name: string) => page.screenshot({ path: `${SHOTS}/review-records-${viewport.width}x${viewport.height}-${name}.png`, fullPage: true })

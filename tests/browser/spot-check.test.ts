@@ -7,10 +7,11 @@ import { randomUUID } from 'node:crypto'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
 import { PASSWORD, addMember, signUp } from '../support/accounts'
-import { addToolScript, TABLET_VIEWPORTS, launchBrowser, openContext, overflowsSideways, smallTargets, visit, waitForHydration, type Viewport } from '../support/browser'
+import { idbRows, launchBrowser, openContext, overflowsSideways, smallTargets, TABLET_VIEWPORTS, visit, waitForHydration, type Viewport } from '../support/browser'
 import { cleanTryout, publishedJob, rosterLearner } from '../support/breakdowns'
 import { startServer, type TestServer } from '../support/server'
 import type { BreakdownContent } from '../../shared/schemas/breakdown'
+import { axeViolations } from '../support/axe'
 
 let server: TestServer
 let browser: Browser
@@ -40,37 +41,6 @@ function sealerBreakdown(): BreakdownContent {
       ],
     }],
   }
-}
-
-async function idbRows<T>(page: Page, store: string): Promise<T[]> {
-  return page.evaluate(name => new Promise<T[]>((resolve, reject) => {
-    const open = indexedDB.open('fourfold')
-    open.onerror = () => reject(open.error)
-    open.onsuccess = () => {
-      const db = open.result
-      if (!db.objectStoreNames.contains(name)) {
-        db.close()
-        resolve([])
-        return
-      }
-      const req = db.transaction(name, 'readonly').objectStore(name).getAll()
-      req.onsuccess = () => {
-        db.close()
-        resolve(req.result as T[])
-      }
-      req.onerror = () => reject(req.error)
-    }
-  }), store)
-}
-
-async function axeViolations(page: Page) {
-  await page.evaluate(() => Promise.all(document.getAnimations().map(a => a.finished.catch(() => undefined))))
-  if (!(await page.evaluate(() => 'axe' in window))) await addToolScript(page, 'node_modules/axe-core/axe.min.js')
-  return page.evaluate(async () => {
-    const axe = (window as unknown as { axe: { run: (ctx: Document, o: object) => Promise<{ violations: Array<{ id: string, impact: string, help: string, nodes: Array<{ target: string[] }> }> }> } }).axe
-    const result = await axe.run(document, { runOnly: { type: 'tag', values: ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa', 'wcag22aa'] } })
-    return result.violations.map(v => ({ id: v.id, impact: v.impact, help: v.help, nodes: v.nodes.slice(0, 5).map(n => n.target.join(' ')) }))
-  })
 }
 
 async function expectScreen(page: Page, viewport: Viewport, name: string) {

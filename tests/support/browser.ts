@@ -112,3 +112,25 @@ export async function overflowsSideways(page: Page): Promise<boolean> {
 export async function addToolScript(page: Page, path: string): Promise<void> {
   await page.evaluate(readFileSync(path, 'utf8'))
 }
+
+/** Every row of one store of the tablet's IndexedDB, read with the raw API (not through the app). */
+export async function idbRows<T>(page: Page, store: string): Promise<T[]> {
+  return page.evaluate(name => new Promise<T[]>((resolve, reject) => {
+    const open = indexedDB.open('fourfold')
+    open.onerror = () => reject(open.error)
+    open.onsuccess = () => {
+      const db = open.result
+      if (!db.objectStoreNames.contains(name)) {
+        db.close()
+        resolve([])
+        return
+      }
+      const req = db.transaction(name, 'readonly').objectStore(name).getAll()
+      req.onsuccess = () => {
+        db.close()
+        resolve(req.result as T[])
+      }
+      req.onerror = () => reject(req.error)
+    }
+  }), store)
+}
