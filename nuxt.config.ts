@@ -1,4 +1,5 @@
-import { cpSync } from 'node:fs'
+import { cpSync, readFileSync } from 'node:fs'
+import { createRequire } from 'node:module'
 import { resolve } from 'node:path'
 import type { PluginOption } from 'vite'
 import { ensureDevSessionPassword } from './scripts/session-secret.mjs'
@@ -105,7 +106,7 @@ export default defineNuxtConfig({
     },
   },
   vite: {
-    plugins: [dexieModernInBrowser()],
+    plugins: [dexieModernInBrowser(), oneCopyInBrowser('hookable', 'nuxt')],
     // Every component is <script setup>: without the Options API, Vue's runtime is about 1 KiB
     // (gzip) smaller on every page, the lesson runner included (its scripts are budgeted: at most
     // 2× a bare Nuxt page, tests/budgets).
@@ -198,6 +199,38 @@ function dexieModernInBrowser(): PluginOption {
     resolveId(id, importer, options) {
       if (id !== 'dexie' || options?.ssr) return null
       return this.resolve('dexie/dist/modern/dexie.mjs', importer, { ...options, skipSelf: true })
+    },
+  }
+}
+
+/**
+ * One copy of `name` in the browser's scripts where npm installed the same version twice: nuxt and
+ * unhead each get their own hookable 6 under their node_modules (the top level holds hookable 5 for
+ * the server's tools), and both copies were bundled into the entry every page loads (about 1 KiB
+ * gzip). Imports of `name` that resolve to another copy of the same version are pointed at the copy
+ * `owner` resolves; a copy of another version is left alone. The server keeps npm's layout.
+ */
+function oneCopyInBrowser(name: string, owner: string): PluginOption {
+  const versionAt = (entry: string) => {
+    const marker = `/node_modules/${name}/`
+    const root = entry.slice(0, entry.lastIndexOf(marker) + marker.length)
+    return (JSON.parse(readFileSync(`${root}package.json`, 'utf8')) as { version: string }).version
+  }
+  let canonical: { id: string, version: string } | null = null
+  return {
+    name: 'fourfold:one-copy-in-browser',
+    enforce: 'pre',
+    async resolveId(id, importer, options) {
+      if (id !== name || options?.ssr) return null
+      const resolved = await this.resolve(id, importer, { ...options, skipSelf: true })
+      if (!resolved) return null
+      if (!canonical) {
+        // Resolved as if imported from the owner's own package.json, i.e. from inside its folder.
+        const ownerCopy = await this.resolve(id, createRequire(import.meta.url).resolve(`${owner}/package.json`), { ...options, skipSelf: true })
+        if (!ownerCopy) return null
+        canonical = { id: ownerCopy.id, version: versionAt(ownerCopy.id) }
+      }
+      return versionAt(resolved.id) === canonical.version ? canonical.id : resolved
     },
   }
 }

@@ -4,11 +4,15 @@
 // browser the compiled parser buys nothing a person notices (form-sized input), so it is off here;
 // the server keeps it (the sync merge validates thousands of events). Set at module top level, and
 // this plugin sorts first ("0."), because the probe runs when the first object schema is built,
-// which can be while a later plugin's imports load. `config` comes from zod's core module (the one
-// the schemas share) rather than `z`: importing `z` here put much of zod into the script every page
-// loads, the lesson runner's included (its scripts are budgeted, tests/budgets).
-import { config } from 'zod/v4/core'
+// which can be while a later plugin's imports load.
+//
+// zod keeps that setting on `globalThis.__zod_globalConfig` (zod/v4/core/core.js: `config()` writes
+// into the same object, created by whichever comes first), so setting it there needs no import of
+// zod: importing even zod's core module put about 3 KiB (gzip) of zod into the script every page
+// loads, the lesson runner's included (its scripts are budgeted, tests/budgets). A unit test
+// (tests/unit/zod-jitless.test.ts) checks that zod still reads it from there.
+import { setZodJitless } from '~/utils/zod-jitless'
 
-config({ jitless: true })
+setZodJitless()
 
 export default defineNuxtPlugin(() => {})

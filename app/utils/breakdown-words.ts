@@ -2,20 +2,6 @@
 import { HAZARD_CATEGORY_LABELS, VERSION_STATUS_LABELS, type HazardCategory, type VersionStatus } from '#shared/types/breakdown'
 import type { ApiDate, JobListItem, RouteError } from '~/types/jobs'
 
-/**
- * A new lineage id. crypto.randomUUID exists only in secure contexts (https, localhost); a
- * tablet on a plain-http site address still needs ids, so fall back to a v4 UUID (RFC 9562 §5.4)
- * from getRandomValues, which every browser has.
- */
-export function newElementId(): string {
-  if (typeof crypto.randomUUID === 'function') return crypto.randomUUID()
-  const b = crypto.getRandomValues(new Uint8Array(16))
-  b[6] = (b[6]! & 0x0F) | 0x40
-  b[8] = (b[8]! & 0x3F) | 0x80
-  const hex = [...b].map(x => x.toString(16).padStart(2, '0')).join('')
-  return `${hex.slice(0, 8)}-${hex.slice(8, 12)}-${hex.slice(12, 16)}-${hex.slice(16, 20)}-${hex.slice(20)}`
-}
-
 const dateFormat = new Intl.DateTimeFormat('en-GB', { dateStyle: 'medium' })
 const dateTimeFormat = new Intl.DateTimeFormat('en-GB', { dateStyle: 'medium', timeStyle: 'short' })
 const timeFormat = new Intl.DateTimeFormat('en-GB', { hour: '2-digit', minute: '2-digit' })

@@ -3,7 +3,7 @@
 // planned. A mark is appended with this device's next sequence number (shared with lesson
 // events) and the promise resolves only once IndexedDB has committed it (DESIGN.md §7).
 import type { CheckEvent } from '#shared/utils/check-state'
-import { newElementId as newId } from './breakdown-words'
+import { newElementId as newId } from './new-id'
 import { deviceId, localDb, type LocalCheck, type LocalCheckEvent, type OfflineDueCheck, type OfflinePlanItem } from './localdb'
 
 /** What the server computed for a finished check. */

@@ -6,7 +6,7 @@ import * as dexieModule from 'dexie'
 import type { BreakdownContent } from '#shared/schemas/breakdown'
 import type { LessonEvent } from '#shared/utils/lesson-events'
 // crypto.randomUUID exists only in secure contexts; a tablet on a plain-http site address still needs ids.
-import { newElementId as newId } from './breakdown-words'
+import { newElementId as newId } from './new-id'
 import { StorageFullError, isStorageFull } from './storage-full'
 
 export interface OfflineVersion {
