@@ -13,7 +13,9 @@ export default defineConfig({
         test: { name: 'unit', include: ['tests/unit/**/*.test.ts'], environment: 'node' },
       },
       await defineVitestProject({
-        test: { name: 'nuxt', include: ['tests/nuxt/**/*.test.ts'], environment: 'nuxt', setupFiles: ['tests/support/nuxt-setup.ts'] },
+        // Starting the Nuxt environment (setupNuxt in a beforeAll) took over vitest's default 10 s once
+        // while browser suites shared the two CPUs; a minute leaves room without hiding a hang.
+        test: { name: 'nuxt', include: ['tests/nuxt/**/*.test.ts'], environment: 'nuxt', setupFiles: ['tests/support/nuxt-setup.ts'], hookTimeout: 60_000 },
       }),
       {
         test: {

@@ -8,8 +8,7 @@ const CSV_MAX_ROWS = 50_000
 export default defineEventHandler(async (event) => {
   const filter = queryValid(event, recordsFilterSchema)
   const caller = await requireRole(event, 'admin', 'coach', 'auditor')
-  const db = await useDb()
-  const { rows, truncated } = await allRecords(db.$client, caller.organisation.id, filter, CSV_MAX_ROWS)
+  const { rows, truncated } = matchingRecords(await organisationRecords(caller.organisation.id), filter, CSV_MAX_ROWS)
   if (truncated) throw badRequest(`More than ${CSV_MAX_ROWS.toLocaleString('en-GB')} records match. Choose a shorter date range or a job, and export in parts.`, 413)
   // Every cell quoted (OWASP CSV injection guidance, with the formula prefix in csvCell).
   const body = stringify([RECORD_CSV_COLUMNS.map(([name]) => name), ...rows.map(recordCsvCells)], { quoted: true, quoted_empty: true, record_delimiter: 'windows' })

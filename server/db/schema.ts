@@ -207,7 +207,7 @@ export const lessons = sqliteTable('lessons', {
 }, t => [
   index('lessons_org_idx').on(t.organisationId),
   index('lessons_learner_idx').on(t.organisationId, t.learnerId),
-  // The records list, newest first: read in this order, so a page stops after its rows (records-query.ts).
+  // The records list, newest first: an organisation's whole list is read in this order (records-query.ts).
   index('lessons_org_started_idx').on(t.organisationId, t.startedAt, t.id),
 ])
 

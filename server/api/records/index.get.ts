@@ -5,6 +5,5 @@ export default defineEventHandler(async (event): Promise<RecordsPage> => {
   const filter = queryValid(event, recordsFilterSchema)
   const page = queryValid(event, recordsPageSchema)
   const caller = await requireRole(event, 'admin', 'coach', 'auditor')
-  const db = await useDb()
-  return recordsPage(db.$client, caller.organisation.id, filter, page)
+  return recordsPageOf(await organisationRecords(caller.organisation.id), filter, page)
 })
