@@ -9,6 +9,17 @@ import { worksOffline } from '~/utils/offline'
 const PUBLIC_PAGES = new Set(['/sign-in', '/sign-up', '/forgot-password', '/reset-password', '/accept-invite', '/dev/mail'])
 
 export default defineNuxtRouteMiddleware(async (to) => {
+  // A request for /api/ reaches the pages only when no API route answers its method and path: answer
+  // with a JSON 404 that names them, never the sign-in redirect (tablets and outside tools read /api/
+  // as JSON). It is sent the way navigateTo sends a redirect from here (the render's own response).
+  if (import.meta.server && to.path.startsWith('/api/')) {
+    const ssrContext = useNuxtApp().ssrContext
+    if (ssrContext) {
+      const message = `No API route answers ${useRequestEvent()?.method ?? 'GET'} ${to.path}.`
+      ssrContext['~renderResponse'] = { statusCode: 404, statusMessage: 'Not Found', headers: { 'content-type': 'application/json; charset=utf-8', 'cache-control': 'no-store' }, body: JSON.stringify({ statusCode: 404, statusMessage: 'Not Found', message, data: { message } }) }
+    }
+    return abortNavigation()
+  }
   // The shell is only the frame the offline screens open in, not a screen of its own.
   if (to.path === APP_SHELL_PATH) return navigateTo('/', { replace: true })
   if (PUBLIC_PAGES.has(to.path)) return

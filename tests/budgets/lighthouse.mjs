@@ -66,6 +66,21 @@ async function audit(prepare) {
   }
 }
 
+/**
+ * Lighthouse sometimes loses the start of its own trace (NO_NAVSTART, "Please run Lighthouse again");
+ * that says nothing about the page, so such an audit is run again, once, in a fresh Chromium.
+ */
+async function auditAgainIfTraceLost(prepare) {
+  try {
+    return await audit(prepare)
+  }
+  catch (error) {
+    if (!String(error?.message).includes('NO_NAVSTART')) throw error
+    log(`  (Lighthouse lost its trace: ${error.message.slice(0, 80)}…; auditing again)`)
+    return audit(prepare)
+  }
+}
+
 const median = list => [...list].sort((a, b) => a - b)[Math.floor(list.length / 2)]
 
 /** The audits that cost a category points in one report, in words, for the failure message. */
@@ -115,7 +130,7 @@ async function main() {
   for (const target of pages) {
     const reports = []
     for (let i = 0; i < runs; i++) {
-      const lhr = await audit(target.prepare)
+      const lhr = await auditAgainIfTraceLost(target.prepare)
       reports.push(lhr)
       if (saveDir) {
         await mkdir(saveDir, { recursive: true })

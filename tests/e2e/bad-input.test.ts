@@ -81,6 +81,19 @@ describe('bad input', () => {
     expect((await admin.client.delete('/api/work-areas/%00%ff')).status).toBe(404)
   })
 
+  it('answers a JSON 404 naming the path to an /api/ path no route answers, signed in or not', async () => {
+    const anonymous = new Client(server.url, uniqueAddress())
+    for (const [client, method, path] of [[anonymous, 'GET', '/api/no-such-thing'], [admin.client, 'GET', '/api/plan/extra/parts/here'], [admin.client, 'POST', '/api/lessons'], [anonymous, 'DELETE', '/api/health']] as const) {
+      const res = await client.request(method, path, method === 'GET' || method === 'DELETE' ? undefined : {})
+      expect(res.status, `${method} ${path}`).toBe(404)
+      expect(res.headers.get('content-type'), `${method} ${path}`).toMatch(/application\/json/)
+      expect(res.body.data.message).toBe(`No API route answers ${method} ${path}.`)
+    }
+    // Named routes still answer as before.
+    expect((await anonymous.get('/api/health')).status).toBe(200)
+    expect((await anonymous.get('/api/me')).status).toBe(401)
+  })
+
   it('never answers 5xx to generated hostile bodies, and saves nothing from them', async () => {
     const before = await sql(server.databaseUrl, 'select (select count(*) from organisations) o, (select count(*) from users) u, (select count(*) from invites) i, (select count(*) from work_areas) w')
     const routes: Array<[string, string]> = [
