@@ -3,17 +3,15 @@
 // write both servers have just answered GET /api/plan (so both hold the organisation's cells); the
 // write goes to one of them, and the next GET on each must show it. One kind of write per test.
 import { randomUUID } from 'node:crypto'
-import { mkdtemp, rm } from 'node:fs/promises'
-import { tmpdir } from 'node:os'
-import { join } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { startServer, type TestServer } from '../support/server'
-import { Client, uniqueAddress } from '../support/http'
-import { PASSWORD, addMember, signUp } from '../support/accounts'
+import type { TestServer } from '../support/server'
+import type { Client } from '../support/http'
+import { addMember, signInOn, signUp } from '../support/accounts'
+import { startTwoServers, type TwoServers } from '../support/two-servers'
 import { cleanTryout, publishedJob, rosterLearner } from '../support/breakdowns'
 import type { PlanMatrix } from '../../shared/types/plan-matrix'
 
-let dir: string
+let servers: TwoServers
 let a: TestServer
 let b: TestServer
 let admin: Awaited<ReturnType<typeof signUp>>
@@ -26,13 +24,6 @@ let adminOnB: Client
 let slicer: Awaited<ReturnType<typeof publishedJob>>
 let areaId: string
 let learnerId: string
-
-async function signInOn(server: TestServer, email: string) {
-  const client = new Client(server.url, uniqueAddress())
-  const res = await client.post('/api/auth/login', { email, password: PASSWORD })
-  if (res.status !== 200) throw new Error(`login on ${server.url}: ${res.status} ${res.text}`)
-  return client
-}
 
 /** GET /api/plan (every learner on one page) from both servers. */
 async function plans(query = '?limit=500'): Promise<[PlanMatrix, PlanMatrix]> {
@@ -50,10 +41,9 @@ const cellOf = (m: PlanMatrix, learner: string, job: string) => m.cells.find(c =
 const coverageOf = (m: PlanMatrix, job: string) => m.coverage.jobs.find(c => c.jobId === job)
 
 beforeAll(async () => {
-  dir = await mkdtemp(join(tmpdir(), 'fourfold-plan-cache-'))
-  // One database file, two processes, started one after the other so the second finds the migrations applied.
-  a = await startServer({ dir })
-  b = await startServer({ dir })
+  servers = await startTwoServers('plan-cache')
+  a = servers.a
+  b = servers.b
   admin = await signUp(a, 'Crumb Cache Bakery')
   coach = await addMember(a, admin.client, 'coach')
   coachOnB = await signInOn(b, coach.email)
@@ -66,10 +56,7 @@ beforeAll(async () => {
   expect((await admin.client.patch(`/api/learners/${learnerId}`, { workAreaId: areaId })).status).toBe(200)
 }, 180_000)
 
-afterAll(async () => {
-  for (const s of [b, a]) await s?.stop()
-  if (dir) await rm(dir, { recursive: true, force: true })
-})
+afterAll(() => servers?.stop())
 
 describe('the next GET /api/plan on either server shows', () => {
   it('a plan item put on the other server', async () => {

@@ -4,17 +4,15 @@
 // the organisation's list); the write goes to one of them, and the next GET on each, and the CSV,
 // must show it. One kind of write per test, one for each thing a record shows.
 import { randomUUID } from 'node:crypto'
-import { mkdtemp, rm } from 'node:fs/promises'
-import { tmpdir } from 'node:os'
-import { join } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { startServer, type TestServer } from '../support/server'
-import { Client, uniqueAddress } from '../support/http'
-import { PASSWORD, addMember, signUp } from '../support/accounts'
+import type { TestServer } from '../support/server'
+import type { Client } from '../support/http'
+import { addMember, signInOn, signUp } from '../support/accounts'
+import { startTwoServers, type TwoServers } from '../support/two-servers'
 import { cleanTryout, publishedJob, rosterLearner } from '../support/breakdowns'
 import type { RecordRow, RecordsPage } from '../../shared/schemas/records'
 
-let dir: string
+let servers: TwoServers
 let a: TestServer
 let b: TestServer
 let admin: Awaited<ReturnType<typeof signUp>>
@@ -29,13 +27,6 @@ let learnerId: string
 const lessonId = randomUUID()
 const deviceId = randomUUID()
 const startedAt = Date.now() - 3_600_000
-
-async function signInOn(server: TestServer, email: string) {
-  const client = new Client(server.url, uniqueAddress())
-  const res = await client.post('/api/auth/login', { email, password: PASSWORD })
-  if (res.status !== 200) throw new Error(`login on ${server.url}: ${res.status} ${res.text}`)
-  return client
-}
 
 /** GET /api/records from both servers; both then hold the organisation's list. */
 async function lists(): Promise<[RecordsPage, RecordsPage]> {
@@ -58,10 +49,9 @@ function lesson(over: Record<string, unknown> = {}) {
 }
 
 beforeAll(async () => {
-  dir = await mkdtemp(join(tmpdir(), 'fourfold-records-cache-'))
-  // One database file, two processes, started one after the other so the second finds the migrations applied.
-  a = await startServer({ dir })
-  b = await startServer({ dir })
+  servers = await startTwoServers('records-cache')
+  a = servers.a
+  b = servers.b
   admin = await signUp(a, 'Crumb Records Bakery')
   coach = await addMember(a, admin.client, 'coach')
   coachOnB = await signInOn(b, coach.email)
@@ -73,10 +63,7 @@ beforeAll(async () => {
   expect((await admin.client.patch(`/api/learners/${learnerId}`, { workAreaId: areaId, reference: 'B-1' })).status).toBe(200)
 }, 180_000)
 
-afterAll(async () => {
-  for (const s of [b, a]) await s?.stop()
-  if (dir) await rm(dir, { recursive: true, force: true })
-})
+afterAll(() => servers?.stop())
 
 describe('the next GET /api/records (and CSV) on either server shows', () => {
   it('a lesson pushed through sync on the other server, then its sign-off', async () => {

@@ -4,11 +4,9 @@
 // acknowledged. A shortened run of npm run bench:load's accounting (tests/bench/lib: the same
 // simulated tablets and the same check of the file); the figures belong to the benchmark, this only
 // asserts the guarantee.
-import { mkdtemp, rm } from 'node:fs/promises'
-import { tmpdir } from 'node:os'
-import { join } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { startServer, type TestServer } from '../support/server'
+import type { TestServer } from '../support/server'
+import { startTwoServers, type TwoServers } from '../support/two-servers'
 import { PASSWORD, addMember, signUp } from '../support/accounts'
 import { publishedJob, rosterLearner } from '../support/breakdowns'
 import { uniqueAddress } from '../support/http'
@@ -20,7 +18,7 @@ const TABLETS = 6
 const RUN_MS = 6000
 const EVENTS_PER_PUSH = 120
 
-let dir: string
+let servers: TwoServers
 let a: TestServer
 let b: TestServer
 
@@ -52,16 +50,12 @@ async function readUntil(servers: TestServer[], cookie: (s: TestServer) => strin
 }
 
 beforeAll(async () => {
-  dir = await mkdtemp(join(tmpdir(), 'fourfold-two-instances-'))
-  // One database file, two processes, started one after the other so the second finds the migrations applied.
-  a = await startServer({ dir })
-  b = await startServer({ dir })
+  servers = await startTwoServers('two-instances')
+  a = servers.a
+  b = servers.b
 }, 120_000)
 
-afterAll(async () => {
-  for (const s of [b, a]) await s?.stop()
-  if (dir) await rm(dir, { recursive: true, force: true })
-})
+afterAll(() => servers?.stop())
 
 describe('two app processes on one database file under sync load', () => {
   it('answer every push and read without a 5xx, and the file holds exactly the acknowledged events', async () => {

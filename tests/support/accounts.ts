@@ -38,3 +38,11 @@ async function membershipIdOf(admin: Client, email: string): Promise<string> {
   const members = await admin.get<Array<{ id: string, email: string }>>('/api/members')
   return members.body.find(m => m.email === email)?.id ?? ''
 }
+
+/** The same person signed in on another server (a second app instance on the same database). */
+export async function signInOn(server: TestServer, email: string) {
+  const client = new Client(server.url, uniqueAddress())
+  const res = await client.post('/api/auth/login', { email, password: PASSWORD })
+  if (res.status !== 200) throw new Error(`login on ${server.url}: ${res.status} ${res.text}`)
+  return client
+}
