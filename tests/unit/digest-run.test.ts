@@ -12,7 +12,7 @@ import { createClient, type Client } from '@libsql/client'
 import { eq } from 'drizzle-orm'
 import { drizzle } from 'drizzle-orm/libsql'
 import { migrate } from 'drizzle-orm/libsql/migrator'
-import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest'
+import { afterAll, beforeAll, beforeEach, describe, expect, it, vi } from 'vitest'
 import * as schema from '../../server/db/schema'
 import { serialiseWrite } from '../../server/utils/write-lock'
 import { trainingRows } from '../../server/utils/training-state'
@@ -34,6 +34,11 @@ const people = { admin: randomUUID(), anna: randomUUID(), ben: randomUUID() }
 const now = new Date(2026, 11, 2, 6, 0).getTime()
 
 beforeAll(async () => {
+  // The mail outbox stamps and expires mail by the real clock (Date.now), the digest by the `now`
+  // it is given: run the clock from `now` so a digest composed for 2 December is not already past
+  // its end of day when the suite runs later (this failed CI on 3 December). Timers stay real: the
+  // mail server's delay and the outbox's retry wait still run.
+  vi.useFakeTimers({ now, toFake: ['Date'], shouldAdvanceTime: true })
   dir = await mkdtemp(join(tmpdir(), 'fourfold-digest-'))
   const url = `file:${join(dir, 'digest.db')}`
   client = createClient({ url, timeout: 5000 })
@@ -86,6 +91,7 @@ beforeAll(async () => {
   await db.insert(schema.planItems).values({ id: randomUUID(), organisationId: otherOrg, learnerId, jobId: otherJob, targetDate: '2026-11-20', reason: 'turnover' })
 })
 afterAll(async () => {
+  vi.useRealTimers()
   client?.close()
   if (dir) await rm(dir, { recursive: true, force: true })
 })
