@@ -7,6 +7,7 @@ import { storePulledChecks, type SyncedCheck, type SyncedCheckEvent } from '~/ut
 import { applyPushAnswer, EVENTS_PER_PUSH, outbox, planPushes, type PushAnswer, type SyncedEvent, type SyncedLesson } from '~/utils/sync-client'
 import { retryWords, syncRetryDelay } from '~/utils/sync-retry'
 import { isStorageFull } from '~/utils/storage-full'
+import { pullNeedsDownload } from '~/utils/offline'
 
 export interface SyncState {
   running: boolean
@@ -124,7 +125,8 @@ export function useSync() {
       state.value.progress = 'Checking the server for changes…'
       const cursorKey = `syncCursor:${organisationId}`
       let since = ((await db.meta.get(cursorKey))?.value as number | undefined) ?? 0
-      let referenceChanged = since === 0
+      const firstPull = since === 0
+      let referenceChanged = false
       for (let page = 0; page < 50; page++) {
         const pulled = await $fetch<PullAnswer>('/api/sync', { query: { since } })
         referenceChanged ||= pulled.versions.length + pulled.removedVersions.length + pulled.learners.length + pulled.removedLearners.length > 0
@@ -136,7 +138,8 @@ export function useSync() {
         if (!pulled.more) break
       }
       await db.meta.put({ key: cursorKey, value: since })
-      if (referenceChanged) await useOfflineData().refresh()
+      const tabletData = useOfflineData()
+      if (pullNeedsDownload({ first: firstPull, changed: referenceChanged }, { downloading: tabletData.state.value.running, summary: tabletData.state.value.summary }, Date.now())) await tabletData.refresh()
       const now = Date.now()
       await db.meta.put({ key: `lastSyncedAt:${organisationId}`, value: now })
       state.value.lastSyncedAt = now

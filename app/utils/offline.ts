@@ -162,6 +162,20 @@ export function tabletDataStale(summary: Pick<TabletDataSummary, 'at'> | null, n
   return !summary || now - summary.at >= REFRESH_AFTER_MS || summary.at > now
 }
 
+/**
+ * Whether a sync, after its pull, downloads the tablet data (breakdowns, photos, roster) again.
+ * A later pull says what changed since the last one: a breakdown or the roster changed, download.
+ * A tablet's first pull (no cursor yet) lists everything the server holds, which is no news of a
+ * change: the download that opening the app starts for stale or missing data (plugins/offline-data)
+ * fetches the same, so while that one runs, or once it has finished, a second would fetch it all
+ * again. Only a change made in the second or two between that download's list and this first pull
+ * waits for the next refresh.
+ */
+export function pullNeedsDownload(pull: { first: boolean, changed: boolean }, tablet: { downloading: boolean, summary: Pick<TabletDataSummary, 'at'> | null }, now: number): boolean {
+  if (!pull.first) return pull.changed
+  return !tablet.downloading && tabletDataStale(tablet.summary, now)
+}
+
 function plural(n: number, one: string, many: string) {
   return `${n} ${n === 1 ? one : many}`
 }

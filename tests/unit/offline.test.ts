@@ -5,7 +5,7 @@ import 'fake-indexeddb/auto'
 import { afterEach, beforeEach, describe, expect, it } from 'vitest'
 import { APP_SHELL_PATH, withAppShellEntry } from '../../app/utils/app-shell'
 import { closeLocalDb, storePhoto, type OfflineLearner, type OfflineVersion } from '../../app/utils/localdb'
-import { REFRESH_AFTER_MS, REMEMBER_FOR_MS, keepForLessons, photoIdsOf, screenNeedingConnection, serverUnreachable, statusOf, tabletDataStale, tabletDataWords, toOfflineVersion, whenInWords, worksOffline, type VersionAnswer } from '../../app/utils/offline'
+import { REFRESH_AFTER_MS, REMEMBER_FOR_MS, keepForLessons, photoIdsOf, pullNeedsDownload, screenNeedingConnection, serverUnreachable, statusOf, tabletDataStale, tabletDataWords, toOfflineVersion, whenInWords, worksOffline, type VersionAnswer } from '../../app/utils/offline'
 import { forgetMember, prunePhotos, rememberedMember, rememberMember, saveTabletDataSummary, storedPhotoKeys, tabletDataSummary } from '../../app/utils/offline-store'
 import { kp, single, step } from '../fixtures/breakdowns'
 
@@ -113,6 +113,20 @@ describe('the tablet\'s data in words', () => {
     expect(tabletDataStale({ at }, at + REFRESH_AFTER_MS)).toBe(true)
     // A clock set back since: do not trust the old time.
     expect(tabletDataStale({ at }, at - 60_000)).toBe(true)
+  })
+
+  it('is downloaded after a pull that shows a change, and once, not twice, on a first visit', () => {
+    const idle = { downloading: false, summary: { at } }
+    // A later pull: only a change in breakdowns or the roster downloads again, fresh data or not.
+    expect(pullNeedsDownload({ first: false, changed: true }, idle, at + 1000)).toBe(true)
+    expect(pullNeedsDownload({ first: false, changed: false }, { downloading: false, summary: null }, at)).toBe(false)
+    expect(pullNeedsDownload({ first: false, changed: true }, { downloading: true, summary: null }, at)).toBe(true)
+    // A first pull lists everything: the download opening the app started (running, or just done) has it.
+    expect(pullNeedsDownload({ first: true, changed: true }, { downloading: true, summary: null }, at)).toBe(false)
+    expect(pullNeedsDownload({ first: true, changed: true }, idle, at + 1000)).toBe(false)
+    // …but nothing downloaded, or only long ago (that download failed, or never started): download now.
+    expect(pullNeedsDownload({ first: true, changed: true }, { downloading: false, summary: null }, at)).toBe(true)
+    expect(pullNeedsDownload({ first: true, changed: false }, idle, at + REFRESH_AFTER_MS)).toBe(true)
   })
 
   it('counts breakdowns, people and photos, and says when photos are missing', () => {
