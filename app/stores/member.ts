@@ -5,6 +5,7 @@
 import { defineStore } from 'pinia'
 import type { Role } from '#shared/types/roles'
 import { serverUnreachable, statusOf } from '~/utils/offline'
+import { takeEarlyMe } from '~/utils/early-me'
 
 export interface Me {
   user: { id: string, name: string, email: string }
@@ -23,7 +24,8 @@ export const useMemberStore = defineStore('member', () => {
 
   async function refresh() {
     try {
-      me.value = await useRequestFetch()<Me>('/api/me')
+      // The answer asked as a browser-rendered page started (utils/early-me.ts), else a new request.
+      me.value = await ((import.meta.client ? takeEarlyMe<Me>() : null) ?? useRequestFetch()<Me>('/api/me'))
       fromDevice.value = false
       if (import.meta.client) await remember(me.value)
     }
