@@ -26,8 +26,9 @@ export default defineNuxtRouteMiddleware(async (to) => {
   const signIn = () => navigateTo({ path: '/sign-in', query: to.fullPath !== '/' ? { next: to.fullPath } : {} })
   const { loggedIn } = useUserSession()
   const member = useMemberStore()
-  // In the browser, when who is signed in must be asked first, the page's own scripts load meanwhile
-  // rather than after the answer (one round trip less before a lesson opens from a fresh load).
+  // In the browser, when who is signed in must be asked first (moving on after signing out), the
+  // page's own scripts load meanwhile rather than after the answer. On a fresh load of a
+  // browser-rendered page plugins/0.ask-me-early.client.ts has started them already.
   if (import.meta.client && !member.me) void preloadRouteComponents(to)
   if (!loggedIn.value) {
     // On the server the session is the answer. In the browser a missing session may only mean

@@ -456,3 +456,46 @@ describe.each(TABLET_VIEWPORTS)('lesson runner at $name', (viewport) => {
     }
   })
 })
+
+// A page rendered in the browser (the runner, starting a lesson) must know who is signed in before
+// it opens. nuxt-auth-utils asks GET /api/_auth/session first; the app asks GET /api/me beside it
+// (plugins/0.ask-me-early.client.ts), not after it, so the page waits one round trip, not two.
+// Checked by holding the session answer until /api/me has been asked (5 s at most): asked only
+// after the session, the order comes out the other way round.
+describe('a lesson page loaded afresh', () => {
+  it('asks who is signed in beside the session request, then opens as usual', async () => {
+    const admin = await signUp(server, 'Millbrook Ovens start')
+    const coach = await addMember(server, admin.client, 'coach')
+    const { context, page, pageErrors } = await openContext(browser, server.url, TABLET_VIEWPORTS[0]!)
+    try {
+      const login = await context.request.post('/api/auth/login', { data: { email: coach.email, password: PASSWORD } })
+      expect(login.status()).toBe(200)
+
+      const order: string[] = []
+      let meAsked = () => {}
+      const meSeen = new Promise<void>(resolve => (meAsked = resolve))
+      page.on('request', (request) => {
+        if (new URL(request.url()).pathname === '/api/me') {
+          order.push('me asked')
+          meAsked()
+        }
+      })
+      await page.route(url => url.pathname === '/api/_auth/session', async (route) => {
+        await Promise.race([meSeen, new Promise(resolve => setTimeout(resolve, 5000))])
+        order.push('session answered')
+        await route.continue()
+      })
+
+      // A fresh load of a browser-rendered page (/lessons/** is rendered in the browser).
+      await visit(page, '/lessons/new')
+      await expect.poll(() => page.getByRole('heading', { level: 1 }).innerText()).toBe('Start a lesson')
+      expect(order.slice(0, 2)).toEqual(['me asked', 'session answered'])
+      // Asked once for the page: the middleware took the early answer instead of asking again.
+      expect(order.filter(step => step === 'me asked')).toHaveLength(1)
+      expect(pageErrors).toEqual([])
+    }
+    finally {
+      await context.close()
+    }
+  })
+})
