@@ -3,6 +3,7 @@
 // reference data, and how the tablet's data state reads in words.
 import type { BreakdownContent } from '#shared/schemas/breakdown'
 import type { OfflineLearner, OfflineVersion, LocalLesson, LessonStage } from './localdb'
+import { clockTime, longDate, sameDay } from './date-words'
 
 /** Screens that work from the tablet alone after one online visit (DESIGN.md §4). */
 export function worksOffline(path: string): boolean {
@@ -181,20 +182,19 @@ function plural(n: number, one: string, many: string) {
 }
 
 /** "10:42" today, "3 March, 10:42" on another day (the tablet's own clock and time zone). */
-export function whenInWords(at: number, now: number, locale = 'en-GB', timeZone?: string): string {
-  const day = (t: number) => new Intl.DateTimeFormat(locale, { timeZone, year: 'numeric', month: '2-digit', day: '2-digit' }).format(t)
-  const time = new Intl.DateTimeFormat(locale, { timeZone, hour: '2-digit', minute: '2-digit' }).format(at)
-  if (day(at) === day(now)) return time
-  const year = (t: number) => new Intl.DateTimeFormat(locale, { timeZone, year: 'numeric' }).format(t)
-  const date = new Intl.DateTimeFormat(locale, { timeZone, day: 'numeric', month: 'long', ...(year(at) === year(now) ? {} : { year: 'numeric' }) }).format(at)
-  return `${date}, ${time}`
+export function whenInWords(at: number, now: number): string {
+  const when = new Date(at)
+  const today = new Date(now)
+  const time = clockTime(when)
+  if (sameDay(when, today)) return time
+  return `${longDate(when, when.getFullYear() !== today.getFullYear())}, ${time}`
 }
 
 /** The tablet's data state in words: "Breakdowns on this tablet: 4, updated 10:42". */
-export function tabletDataWords(summary: TabletDataSummary | null, now: number, locale = 'en-GB', timeZone?: string): string[] {
+export function tabletDataWords(summary: TabletDataSummary | null, now: number): string[] {
   if (!summary) return ['Nothing downloaded to this tablet yet.']
   const lines = [
-    `Breakdowns on this tablet: ${summary.breakdowns}, updated ${whenInWords(summary.at, now, locale, timeZone)}`,
+    `Breakdowns on this tablet: ${summary.breakdowns}, updated ${whenInWords(summary.at, now)}`,
     `People on the roster: ${summary.learners}. Photos: ${summary.photos}.`,
   ]
   if (summary.photosMissing) lines.push(`${plural(summary.photosMissing, 'photo', 'photos')} could not be downloaded; the next refresh tries again.`)

@@ -4,6 +4,7 @@
 // resolves them; the fresh scores the server computed are kept beside the lesson. Spot checks and
 // their marks travel in the same pushes (a check mark names checkId instead of lessonId).
 import { SYNC_LIMITS } from '#shared/utils/sync-limits'
+import { byCodeUnits } from '#shared/utils/code-order'
 import { localDb, type LocalCheck, type LocalCheckEvent, type LocalEvent, type LocalLesson } from './localdb'
 import { observedLessonIds } from './observed-lessons'
 import type { CheckServerResult, SyncedCheck, SyncedCheckEvent } from './local-checks'
@@ -68,7 +69,7 @@ export function planPushes(deviceId: string, lessons: readonly LocalLesson[], ev
     bytes = 0
     return current
   }
-  const sorted = [...events].sort((a, b) => a.lessonId.localeCompare(b.lessonId) || a.seq - b.seq)
+  const sorted = [...events].sort((a, b) => byCodeUnits(a.lessonId, b.lessonId) || a.seq - b.seq)
   for (const e of sorted) {
     const size = JSON.stringify(eventForPush(e)).length + 1
     let push: Push = current ?? start()
@@ -100,7 +101,7 @@ export function planPushes(deviceId: string, lessons: readonly LocalLesson[], ev
     push.checks.push(checkForPush(check))
     bytes += JSON.stringify(push.checks.at(-1)).length
   }
-  const sortedChecks = [...checkEvents].sort((a, b) => a.checkId.localeCompare(b.checkId) || a.seq - b.seq)
+  const sortedChecks = [...checkEvents].sort((a, b) => byCodeUnits(a.checkId, b.checkId) || a.seq - b.seq)
   for (const e of sortedChecks) {
     const size = JSON.stringify(eventForPush(e)).length + 1
     let push: Push = current ?? start()

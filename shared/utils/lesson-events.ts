@@ -1,6 +1,7 @@
 // A lesson's record is an append-only list of events written on the tablet (DESIGN.md §7).
 // Replaying them in one agreed order gives the same state on every device and on the server.
 import { MARK_VALUES, type MarkValue } from './scoring'
+import { byCodeUnits } from './code-order'
 
 // 'observer-mark': a second coach's own mark of the same try-out element, kept apart from the lesson's
 // score and compared with the first coach's marks (Cohen's kappa on the review).
@@ -38,7 +39,7 @@ export function parsePassKey(key: string): { type: PassType, number: number } | 
 
 /** The one order everyone replays in: client time, then device, then the device's own sequence. */
 export function compareEvents(a: LessonEvent, b: LessonEvent): number {
-  return a.clientTime - b.clientTime || (a.deviceId < b.deviceId ? -1 : a.deviceId > b.deviceId ? 1 : 0) || a.seq - b.seq || (a.id < b.id ? -1 : a.id > b.id ? 1 : 0)
+  return a.clientTime - b.clientTime || byCodeUnits(a.deviceId, b.deviceId) || a.seq - b.seq || byCodeUnits(a.id, b.id)
 }
 
 export function isMarkValue(value: unknown): value is MarkValue {

@@ -121,6 +121,40 @@ function cachedPages(page: Page): Promise<Array<{ path: string, body: string }>>
   })
 }
 
+/**
+ * Runs in the page before its scripts: notes every Intl object made and every locale-aware string
+ * method called (`window.intlUsed`), each still doing its work.
+ */
+function recordIntlUse() {
+  const used: string[] = []
+  ;(window as unknown as { intlUsed: string[] }).intlUsed = used
+  for (const name of ['DateTimeFormat', 'NumberFormat', 'Collator', 'PluralRules', 'RelativeTimeFormat', 'ListFormat'] as const) {
+    const Real = Intl[name] as unknown as new (...args: unknown[]) => object
+    ;(Intl as unknown as Record<string, unknown>)[name] = new Proxy(Real, {
+      construct(target, args) {
+        used.push(`Intl.${name}`)
+        return Reflect.construct(target, args)
+      },
+      apply(target, self, args) {
+        used.push(`Intl.${name}`)
+        return Reflect.apply(target as unknown as (...a: unknown[]) => unknown, self, args)
+      },
+    })
+  }
+  const methods: Array<[object, string]> = [[String.prototype, 'localeCompare'], [Date.prototype, 'toLocaleString'], [Date.prototype, 'toLocaleDateString'], [Date.prototype, 'toLocaleTimeString'], [Number.prototype, 'toLocaleString']]
+  for (const [proto, method] of methods) {
+    const real = (proto as Record<string, (...a: unknown[]) => unknown>)[method]!
+    Object.defineProperty(proto, method, {
+      configurable: true,
+      writable: true,
+      value: function (this: unknown, ...args: unknown[]) {
+        used.push(method)
+        return real.apply(this, args)
+      },
+    })
+  }
+}
+
 describe.each(TABLET_VIEWPORTS)('offline at $name', (viewport) => {
   it('after one online visit, Today and starting a lesson open with the network off, from IndexedDB', async () => {
     const size = `${viewport.width}x${viewport.height}`
@@ -184,10 +218,15 @@ describe.each(TABLET_VIEWPORTS)('offline at $name', (viewport) => {
         place: 'Bench 2', startedAt: Date.now() - 600_000, updatedAt: Date.now(), cursor: { stage: 'tryout', pass: 'T3-1', index: 1 },
         prepare: {}, helper: '', decision: null, acknowledgement: null, signedOffAt: null, stageSeconds: {}, synced: 0,
       })
+      // Today opens without any Intl object: the first one a page makes loads the browser's locale
+      // data (about 40 ms of main thread here, 4× that on a slow tablet) while the screen opens.
+      await page.addInitScript(recordIntlUse)
       await page.reload()
       await waitForHydration(page)
       const lessons = page.getByRole('region', { name: 'Lessons in progress on this tablet' })
       await expect.poll(() => lessons.innerText()).toContain(learnerName)
+      await expect.poll(() => tablet.innerText()).toContain('Breakdowns on this tablet: 1, updated')
+      expect(await page.evaluate(() => (window as unknown as { intlUsed: string[] }).intlUsed)).toEqual([])
       // Reloading a moment after the download does not start another one.
       await expect.poll(() => tablet.getByRole('button', { name: 'Refresh tablet data' }).isEnabled(), { timeout: 30_000 }).toBe(true)
       await page.screenshot({ path: `/tmp/offline-today-online-${size}.png`, fullPage: true })

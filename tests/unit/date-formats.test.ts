@@ -25,13 +25,32 @@ afterEach(() => {
 describe('date formats', () => {
   it('makes no formatter at import, and one per format on first use', async () => {
     const made = countFormatters()
-    const words = await freshWords()
+    const { lazyDateFormat } = await freshWords()
     expect(made).not.toHaveBeenCalled()
-    expect(words.formatDate(new Date(2026, 11, 3, 12))).toBe('3 Dec 2026')
-    expect(words.formatDate(new Date(2026, 11, 4, 12))).toBe('4 Dec 2026')
+    const longDay = lazyDateFormat({ weekday: 'long', day: 'numeric', month: 'long' })
+    const longMoment = lazyDateFormat({ day: 'numeric', month: 'long', hour: '2-digit', minute: '2-digit' })
+    expect(made).not.toHaveBeenCalled()
+    longDay(new Date(2026, 11, 3, 12))
+    longDay(new Date(2026, 11, 4, 12))
     expect(made).toHaveBeenCalledTimes(1)
-    words.formatTime(new Date(2026, 11, 3, 12))
+    longMoment(new Date(2026, 11, 3, 12))
     expect(made).toHaveBeenCalledTimes(2)
+  })
+
+  it('writes the short dates and times of the first screens without any Intl formatter', async () => {
+    const made = countFormatters()
+    const { formatDate, formatDateTime, formatTime } = await freshWords()
+    expect(formatDate(new Date(2026, 11, 3, 12))).toBe('3 Dec 2026')
+    expect(formatDateTime(new Date(2026, 11, 3, 12))).toBe('3 Dec 2026, 12:00')
+    expect(formatTime(new Date(2026, 11, 3, 12))).toBe('12:00')
+    expect(made).not.toHaveBeenCalled()
+  })
+
+  it('writes nothing for a date it cannot read', async () => {
+    const { formatDate, formatDateTime, formatTime } = await freshWords()
+    expect(formatDate('not a date')).toBe('')
+    expect(formatDateTime(Number.NaN)).toBe('')
+    expect(formatTime(null)).toBe('')
   })
 
   it('writes no date for a missing one, without making a formatter', async () => {

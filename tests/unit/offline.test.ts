@@ -99,12 +99,14 @@ describe('the app shell in the precache list', () => {
 })
 
 describe('the tablet\'s data in words', () => {
-  const at = Date.UTC(2026, 2, 3, 10, 42)
+  // The tablet's own clock and time zone: local times, so the words are the same in every zone.
+  const at = new Date(2026, 2, 3, 10, 42).getTime()
 
   it('gives the time today and the date on another day', () => {
-    expect(whenInWords(at, at + 60_000, 'en-GB', 'UTC')).toBe('10:42')
-    expect(whenInWords(at, at + 86_400_000, 'en-GB', 'UTC')).toBe('3 March, 10:42')
-    expect(whenInWords(at, Date.UTC(2027, 0, 5), 'en-GB', 'UTC')).toBe('3 March 2026, 10:42')
+    expect(whenInWords(at, at + 60_000)).toBe('10:42')
+    expect(whenInWords(at, new Date(2026, 2, 3, 23, 59).getTime())).toBe('10:42')
+    expect(whenInWords(at, new Date(2026, 2, 4, 0, 1).getTime())).toBe('3 March, 10:42')
+    expect(whenInWords(at, new Date(2027, 0, 5).getTime())).toBe('3 March 2026, 10:42')
   })
 
   it('is refreshed on opening the app only when missing or older than ten minutes', () => {
@@ -131,7 +133,7 @@ describe('the tablet\'s data in words', () => {
 
   it('counts breakdowns, people and photos, and says when photos are missing', () => {
     expect(tabletDataWords(null, at)).toEqual(['Nothing downloaded to this tablet yet.'])
-    const words = tabletDataWords({ organisationId: 'o', breakdowns: 4, learners: 9, photos: 11, photosMissing: 1, at }, at, 'en-GB', 'UTC')
+    const words = tabletDataWords({ organisationId: 'o', breakdowns: 4, learners: 9, photos: 11, photosMissing: 1, at }, at)
     expect(words).toEqual([
       'Breakdowns on this tablet: 4, updated 10:42',
       'People on the roster: 9. Photos: 11.',
