@@ -4,7 +4,8 @@
 //
 //   npm run budget:lighthouse         the existing .output (FOURFOLD_OUTPUT=DIR: another build's copy)
 //   ... -- --runs 1                   audits per page (1–5, default 3)
-//   ... -- --save DIR                 also writes every Lighthouse report (JSON) into DIR
+//   ... -- --save DIR                 also writes every Lighthouse report (JSON) and its trace into DIR
+//   ... -- --pages today,runner       only these pages (signin, today, runner), to look into one
 //
 // Required of each page: performance ≥ 90, accessibility 100, best practices ≥ 95.
 // Each page is audited three times, each time in a fresh Chromium profile, and the median score of
@@ -40,6 +41,7 @@ const args = process.argv.slice(2)
 const runs = args.includes('--runs') ? Number(args[args.indexOf('--runs') + 1]) : 3
 if (!Number.isInteger(runs) || runs < 1 || runs > 5) throw new Error('--runs takes a whole number from 1 to 5')
 const saveDir = args.includes('--save') ? resolve(args[args.indexOf('--save') + 1] ?? '') : null
+const onlyPages = args.includes('--pages') ? String(args[args.indexOf('--pages') + 1] ?? '').split(',') : null
 const log = (...parts) => console.log(...parts)
 const chromes = new Set()
 
@@ -58,7 +60,7 @@ async function audit(prepare) {
     const result = await lighthouse(url, { port: chrome.port, output: 'json', logLevel: 'error', onlyCategories: CATEGORIES })
     if (!result?.lhr) throw new Error(`Lighthouse gave no result for ${url}`)
     if (result.lhr.runtimeError) throw new Error(`Lighthouse: ${result.lhr.runtimeError.code} ${result.lhr.runtimeError.message}`)
-    return result.lhr
+    return { lhr: result.lhr, trace: result.artifacts?.Trace }
   }
   finally {
     await chrome.kill()
@@ -127,14 +129,18 @@ async function main() {
   ]
 
   const results = []
-  for (const target of pages) {
+  const unknown = (onlyPages ?? []).filter(key => !pages.some(p => p.key === key))
+  if (unknown.length) throw new Error(`--pages: no page called ${unknown.join(', ')} (signin, today, runner)`)
+  for (const target of pages.filter(p => !onlyPages || onlyPages.includes(p.key))) {
     const reports = []
     for (let i = 0; i < runs; i++) {
-      const lhr = await auditAgainIfTraceLost(target.prepare)
+      const { lhr, trace } = await auditAgainIfTraceLost(target.prepare)
       reports.push(lhr)
       if (saveDir) {
         await mkdir(saveDir, { recursive: true })
         await writeFile(join(saveDir, `${target.key}-${i + 1}.json`), JSON.stringify(lhr))
+        // The trace the simulation worked from: which main-thread tasks made the blocking time.
+        if (trace) await writeFile(join(saveDir, `${target.key}-${i + 1}.trace.json`), JSON.stringify(trace))
       }
     }
     const scores = Object.fromEntries(CATEGORIES.map(c => [c, reports.map(r => r.categories[c].score)]))
