@@ -109,7 +109,8 @@ export const useLessonStore = defineStore('lesson', () => {
     }
   }
 
-  async function load(id: string) {
+  /** Opens a lesson from the tablet; `found` hears of it as soon as its own row is read, before the rest. */
+  async function load(id: string, found?: (row: LocalLesson) => void) {
     if (lesson.value?.id === id && status.value === 'ready') return
     reset()
     status.value = 'loading'
@@ -118,6 +119,7 @@ export const useLessonStore = defineStore('lesson', () => {
       status.value = 'missing'
       return
     }
+    found?.(row)
     const [pinned, list, learner] = await Promise.all([findVersion(row), lessonEvents(id), localDb().learners.get(row.learnerId)])
     lesson.value = row
     learnerName.value = learner?.name ?? 'Learner not on this tablet'
