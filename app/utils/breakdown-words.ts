@@ -3,6 +3,9 @@ import { HAZARD_CATEGORY_LABELS, VERSION_STATUS_LABELS, type HazardCategory, typ
 import type { ApiDate, JobListItem, RouteError } from '~/types/jobs'
 import { clockTime, shortDate } from '~/utils/date-words'
 
+/** A date as the API or a screen holds it. */
+type DateInput = ApiDate | Date | number | null | undefined
+
 /**
  * A date formatter made on first use, not at import: the first Intl.DateTimeFormat a page makes
  * loads the browser's locale data, about 40 ms of main thread (nearer 160 ms on a slow tablet),
@@ -13,8 +16,6 @@ export function lazyDateFormat(options: Intl.DateTimeFormatOptions, locale = 'en
   let format: Intl.DateTimeFormat | undefined
   return d => (d == null ? '' : (format ??= new Intl.DateTimeFormat(locale, options)).format(new Date(d)))
 }
-
-type DateInput = ApiDate | Date | number | null | undefined
 
 /** Writes a date with `words`; nothing for a missing or unreadable one. */
 function dateIn(words: (at: Date) => string): (d: DateInput) => string {
