@@ -14,7 +14,7 @@ type DateInput = ApiDate | Date | number | null | undefined
  */
 export function lazyDateFormat(options: Intl.DateTimeFormatOptions, locale = 'en-GB'): (d: DateInput) => string {
   let format: Intl.DateTimeFormat | undefined
-  return d => (d == null ? '' : (format ??= new Intl.DateTimeFormat(locale, options)).format(new Date(d)))
+  return dateIn(at => (format ??= new Intl.DateTimeFormat(locale, options)).format(at))
 }
 
 /** Writes a date with `words`; nothing for a missing or unreadable one. */

@@ -47,7 +47,8 @@ describe('date formats', () => {
   })
 
   it('writes nothing for a date it cannot read', async () => {
-    const { formatDate, formatDateTime, formatTime } = await freshWords()
+    const { formatDate, formatDateTime, formatTime, lazyDateFormat } = await freshWords()
+    expect(lazyDateFormat({ weekday: 'long' })('not a date')).toBe('')
     expect(formatDate('not a date')).toBe('')
     expect(formatDateTime(Number.NaN)).toBe('')
     expect(formatTime(null)).toBe('')
