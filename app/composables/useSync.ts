@@ -4,7 +4,7 @@ import Dexie, { type ObservabilitySet } from 'dexie'
 import type { PullAnswer } from '~/utils/sync-pull-types'
 import { localDb } from '~/utils/localdb'
 import { storePulledChecks, type SyncedCheck, type SyncedCheckEvent } from '~/utils/local-checks'
-import { applyPushAnswer, EVENTS_PER_PUSH, outbox, planPushes, type PushAnswer, type SyncedEvent, type SyncedLesson } from '~/utils/sync-client'
+import { applyPushAnswer, EVENTS_PER_PUSH, outbox, planPushes, storePulledScores, type PushAnswer, type SyncedEvent, type SyncedLesson } from '~/utils/sync-client'
 import { retryWords, syncRetryDelay } from '~/utils/sync-retry'
 import { isStorageFull } from '~/utils/storage-full'
 import { pullNeedsDownload } from '~/utils/offline'
@@ -130,9 +130,7 @@ export function useSync() {
       for (let page = 0; page < 50; page++) {
         const pulled = await $fetch<PullAnswer>('/api/sync', { query: { since } })
         referenceChanged ||= pulled.versions.length + pulled.removedVersions.length + pulled.learners.length + pulled.removedLearners.length > 0
-        await db.transaction('rw', db.lessons, async () => {
-          for (const l of pulled.lessons) if (l.score) await db.lessons.update(l.id, { serverScore: l.score } as Partial<SyncedLesson>)
-        })
+        await storePulledScores(pulled.lessons)
         await storePulledChecks(organisationId, { full: since === 0, checks: pulled.checks ?? [], planItems: pulled.planItems ?? [], removedPlanItems: pulled.removedPlanItems ?? [], dueChecks: pulled.dueChecks })
         since = pulled.cursor
         if (!pulled.more) break

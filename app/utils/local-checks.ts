@@ -94,19 +94,25 @@ export interface PulledCheck {
 export async function storePulledChecks(organisationId: string, pulled: { full: boolean, checks: PulledCheck[], planItems: OfflinePlanItem[], removedPlanItems: string[], dueChecks: OfflineDueCheck[] | undefined }, now = Date.now()) {
   const db = localDb()
   await db.transaction('rw', [db.checks, db.planItems, db.dueChecks, db.meta], async () => {
-    for (const c of pulled.checks) {
-      const mine = await db.checks.get(c.id) as SyncedCheck | undefined
+    // Read and written in bulk, not one request per check: a first pull brings the organisation's
+    // whole history while Today is opening, and each request costs the page's main thread.
+    const stored = await db.checks.bulkGet(pulled.checks.map(c => c.id)) as Array<SyncedCheck | undefined>
+    const results: Array<{ key: string, changes: Partial<SyncedCheck> }> = []
+    const rows: SyncedCheck[] = []
+    pulled.checks.forEach((c, i) => {
+      const mine = stored[i]
       if (mine && !mine.fromServer) {
-        await db.checks.update(c.id, { serverResult: c.result } as Partial<SyncedCheck>)
-        continue
+        results.push({ key: c.id, changes: { serverResult: c.result } })
+        return
       }
-      const row: SyncedCheck = {
+      rows.push({
         id: c.id, organisationId, coachUserId: c.coachUserId ?? '', learnerId: c.learnerId, jobId: c.jobId, versionId: c.versionId, lessonId: c.lessonId,
         startedAt: c.startedAt, updatedAt: c.updatedAt, elements: c.elements, note: c.note, finishedAt: c.finishedAt, intervalIndex: c.intervalIndex,
         synced: 1, fromServer: true, serverResult: c.result,
-      }
-      await db.checks.put(row)
-    }
+      })
+    })
+    if (results.length) await db.checks.bulkUpdate(results)
+    if (rows.length) await db.checks.bulkPut(rows)
     if (pulled.full) await db.planItems.where('organisationId').equals(organisationId).delete()
     if (pulled.removedPlanItems.length) await db.planItems.bulkDelete(pulled.removedPlanItems)
     await db.planItems.bulkPut(pulled.planItems.map(p => ({ id: p.id, organisationId, learnerId: p.learnerId, jobId: p.jobId, targetDate: p.targetDate, reason: p.reason })))

@@ -144,6 +144,16 @@ export async function outbox(organisationId: string) {
 
 export interface PushAnswer { accepted: string[], rejected: Array<{ id: string, reason: string }>, scores: Record<string, ServerScore>, checks?: Record<string, CheckServerResult>, cursor: number }
 
+/**
+ * The server's scores of lessons a pull brought, beside the lessons on this tablet; a lesson that is
+ * not on it is skipped (the pull lists the organisation's). One request for the whole page, not one
+ * per lesson: a first pull brings every lesson while Today is opening.
+ */
+export async function storePulledScores(lessons: ReadonlyArray<{ id: string, score: ServerScore | null }>): Promise<void> {
+  const scores = lessons.flatMap(l => l.score ? [{ key: l.id, changes: { serverScore: l.score } as Partial<SyncedLesson> }] : [])
+  if (scores.length) await localDb().lessons.bulkUpdate(scores)
+}
+
 /** Applies the server's answer to the device, in one transaction. */
 export async function applyPushAnswer(push: Push, answer: PushAnswer, now = Date.now()) {
   const db = localDb()

@@ -1,7 +1,7 @@
 import 'fake-indexeddb/auto'
 import { afterEach, beforeEach, describe, expect, it } from 'vitest'
 import { appendEvent, closeLocalDb, getLesson, localDb, saveLesson, type LocalLesson } from '../../app/utils/localdb'
-import { applyPushAnswer, outbox, planPushes, resolveRejection, type SyncedEvent, type SyncedLesson } from '../../app/utils/sync-client'
+import { applyPushAnswer, outbox, planPushes, resolveRejection, storePulledScores, type SyncedEvent, type SyncedLesson } from '../../app/utils/sync-client'
 
 const lesson = (id: string, updatedAt = 5): LocalLesson => ({
   id, organisationId: 'org', coachUserId: 'u', learnerId: 'l', jobId: 'j', versionId: 'v', place: '',
@@ -56,5 +56,22 @@ describe('applying the answer', () => {
     await localDb().lessons.update('M', { updatedAt: 6, helper: 'Ask Bram' })
     await applyPushAnswer(push!, { accepted: ['M'], rejected: [], scores: {}, cursor: 1 })
     expect((await outbox('org')).lessons.map(l => l.id)).toEqual(['M'])
+  })
+})
+
+describe('scores a pull brings', () => {
+  it('land beside the lessons on this tablet, leave the rest of each lesson as it was and skip lessons not here', async () => {
+    await saveLesson(lesson('A'))
+    await saveLesson(lesson('B', 9))
+    const score = (t1: number) => ({ t1, t2: null, t3: null, t4: null, order: null, recall: t1, readiness: 'another-pass' as const })
+    await storePulledScores([{ id: 'A', score: score(60) }, { id: 'B', score: null }, { id: 'elsewhere', score: score(90) }])
+    const a = (await getLesson('A')) as SyncedLesson
+    expect(a.serverScore!.recall).toBe(60)
+    expect(a).toMatchObject({ synced: 0, updatedAt: 5, cursor: { stage: 'tryout' } })
+    expect(((await getLesson('B')) as SyncedLesson).serverScore).toBeUndefined()
+    expect(await localDb().lessons.get('elsewhere')).toBeUndefined()
+    // A later pull with a newer score replaces it.
+    await storePulledScores([{ id: 'A', score: score(80) }])
+    expect(((await getLesson('A')) as SyncedLesson).serverScore!.recall).toBe(80)
   })
 })
